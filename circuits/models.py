@@ -1,0 +1,3 @@
+"""Devices, circuits and terminations (later issues); the sizing engine lives in circuits.sizing."""
+
+from __future__ import annotations

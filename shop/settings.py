@@ -1,0 +1,182 @@
+"""Ampwright settings: one module, driven by the environment, with safe local defaults.
+
+Documented variables (see README "Running for a real shop"):
+SECRET_KEY, DEBUG, ALLOWED_HOSTS, CSRF_TRUSTED_ORIGINS, TIME_ZONE, DATABASE_URL,
+SECURE_SSL_REDIRECT, SECURE_PROXY_SSL_HEADER, SECURE_HSTS_SECONDS, MEDIA_ROOT,
+MEDIA_STORAGE_BACKEND / MEDIA_STORAGE_OPTIONS (JSON) for an S3-compatible store.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import secrets
+from pathlib import Path
+
+import dj_database_url
+
+BASE_DIR = Path(__file__).resolve().parent.parent
+VAR_DIR = Path(os.environ.get("AMPWRIGHT_VAR_DIR", BASE_DIR / "var"))
+
+
+def env_bool(name: str, default: bool) -> bool:
+    value = os.environ.get(name)
+    if value is None or value == "":
+        return default
+    return value.strip().lower() in {"1", "true", "yes", "on"}
+
+
+def env_list(name: str, default: str) -> list[str]:
+    return [item.strip() for item in os.environ.get(name, default).split(",") if item.strip()]
+
+
+def _local_secret_key() -> str:
+    """Generate the key once into var/secret_key (ignored by git) so sessions survive restarts."""
+    path = VAR_DIR / "secret_key"
+    if path.exists():
+        return path.read_text().strip()
+    VAR_DIR.mkdir(parents=True, exist_ok=True)
+    key = secrets.token_urlsafe(50)
+    path.write_text(key)
+    path.chmod(0o600)
+    return key
+
+
+SECRET_KEY = os.environ.get("SECRET_KEY") or _local_secret_key()
+# Local default is the developer's machine; production sets DEBUG=0 (README).
+DEBUG = env_bool("DEBUG", True)
+ALLOWED_HOSTS = env_list("ALLOWED_HOSTS", "127.0.0.1,localhost,[::1]")
+CSRF_TRUSTED_ORIGINS = env_list("CSRF_TRUSTED_ORIGINS", "")
+
+INSTALLED_APPS = [
+    "django.contrib.admin",
+    "django.contrib.auth",
+    "django.contrib.contenttypes",
+    "django.contrib.sessions",
+    "django.contrib.messages",
+    "whitenoise.runserver_nostatic",
+    "django.contrib.staticfiles",
+    "django_htmx",
+    "template_partials",
+    "shop",
+    "circuits",
+    "inspections",
+]
+
+MIDDLEWARE = [
+    "django.middleware.security.SecurityMiddleware",
+    "whitenoise.middleware.WhiteNoiseMiddleware",
+    "django.contrib.sessions.middleware.SessionMiddleware",
+    "django.middleware.common.CommonMiddleware",
+    "django.middleware.csrf.CsrfViewMiddleware",
+    "django.contrib.auth.middleware.AuthenticationMiddleware",
+    "django.contrib.messages.middleware.MessageMiddleware",
+    "django.middleware.clickjacking.XFrameOptionsMiddleware",
+    "django_htmx.middleware.HtmxMiddleware",
+]
+
+ROOT_URLCONF = "shop.urls"
+WSGI_APPLICATION = "shop.wsgi.application"
+
+TEMPLATES = [
+    {
+        "BACKEND": "django.template.backends.django.DjangoTemplates",
+        "DIRS": [BASE_DIR / "templates"],
+        "APP_DIRS": True,
+        "OPTIONS": {
+            "context_processors": [
+                "django.template.context_processors.request",
+                "django.contrib.auth.context_processors.auth",
+                "django.contrib.messages.context_processors.messages",
+                "shop.context_processors.shop_context",
+            ],
+        },
+    },
+]
+
+# Database: SQLite in WAL mode unless DATABASE_URL names another server (PostgreSQL).
+# IMMEDIATE transactions plus a 20 s busy timeout make concurrent tablet writes queue
+# instead of failing with "database is locked"; keep transactions short (no ATOMIC_REQUESTS).
+if os.environ.get("DATABASE_URL"):
+    DATABASES = {"default": dj_database_url.parse(os.environ["DATABASE_URL"], conn_max_age=60)}
+    DATABASES["default"]["CONN_HEALTH_CHECKS"] = True
+else:
+    VAR_DIR.mkdir(parents=True, exist_ok=True)
+    DATABASES = {
+        "default": {
+            "ENGINE": "django.db.backends.sqlite3",
+            "NAME": VAR_DIR / "ampwright.sqlite3",
+            "OPTIONS": {
+                "transaction_mode": "IMMEDIATE",
+                "timeout": 20,
+                "init_command": "PRAGMA journal_mode=WAL; PRAGMA synchronous=NORMAL;",
+            },
+            # A file, not memory, so tests run on the same journal mode as the shop does
+            # and the live server thread of the browser tests shares it.
+            "TEST": {"NAME": VAR_DIR / "test-ampwright.sqlite3"},
+        }
+    }
+
+DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
+
+AUTH_PASSWORD_VALIDATORS = [
+    {"NAME": "django.contrib.auth.password_validation.UserAttributeSimilarityValidator"},
+    {"NAME": "django.contrib.auth.password_validation.MinimumLengthValidator"},
+    {"NAME": "django.contrib.auth.password_validation.CommonPasswordValidator"},
+    {"NAME": "django.contrib.auth.password_validation.NumericPasswordValidator"},
+]
+
+LOGIN_URL = "login"
+LOGIN_REDIRECT_URL = "job_list"
+LOGOUT_REDIRECT_URL = "login"
+
+LANGUAGE_CODE = "en"
+TIME_ZONE = os.environ.get("TIME_ZONE", "UTC")
+USE_I18N = True
+USE_TZ = True
+
+STATIC_URL = "static/"
+STATICFILES_DIRS = [BASE_DIR / "static"]
+STATIC_ROOT = Path(os.environ.get("STATIC_ROOT", VAR_DIR / "static"))
+STATIC_ROOT.mkdir(parents=True, exist_ok=True)
+MEDIA_URL = "media/"
+MEDIA_ROOT = Path(os.environ.get("MEDIA_ROOT", VAR_DIR / "media"))
+
+# Files (logos, photos, PDFs) go through the storage API; several app servers share an
+# S3-compatible store by naming its backend and options here (README).
+STORAGES = {
+    "default": {
+        "BACKEND": os.environ.get(
+            "MEDIA_STORAGE_BACKEND", "django.core.files.storage.FileSystemStorage"
+        ),
+        "OPTIONS": json.loads(os.environ.get("MEDIA_STORAGE_OPTIONS", "{}")),
+    },
+    "staticfiles": {
+        "BACKEND": (
+            "django.contrib.staticfiles.storage.StaticFilesStorage"
+            if DEBUG
+            else "whitenoise.storage.CompressedManifestStaticFilesStorage"
+        ),
+    },
+}
+WHITENOISE_USE_FINDERS = DEBUG
+
+# Production hardening: on whenever DEBUG is off, so `check --deploy` is clean.
+if not DEBUG:
+    SECURE_SSL_REDIRECT = env_bool("SECURE_SSL_REDIRECT", True)
+    SECURE_HSTS_SECONDS = int(os.environ.get("SECURE_HSTS_SECONDS", "31536000"))
+    SECURE_HSTS_INCLUDE_SUBDOMAINS = env_bool("SECURE_HSTS_INCLUDE_SUBDOMAINS", True)
+    SECURE_HSTS_PRELOAD = env_bool("SECURE_HSTS_PRELOAD", False)
+    SESSION_COOKIE_SECURE = True
+    CSRF_COOKIE_SECURE = True
+    if env_bool("SECURE_PROXY_SSL_HEADER", False):
+        # Only behind a reverse proxy that sets this header itself.
+        SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https")
+    SILENCED_SYSTEM_CHECKS = [] if SECURE_HSTS_PRELOAD else ["security.W021"]
+
+LOGGING = {
+    "version": 1,
+    "disable_existing_loggers": False,
+    "handlers": {"console": {"class": "logging.StreamHandler"}},
+    "root": {"handlers": ["console"], "level": os.environ.get("LOG_LEVEL", "WARNING")},
+}

@@ -1,0 +1,10 @@
+"""WSGI entry point; gunicorn serves `shop.wsgi:application` in production."""
+
+from __future__ import annotations
+
+import os
+
+from django.core.wsgi import get_wsgi_application
+
+os.environ.setdefault("DJANGO_SETTINGS_MODULE", "shop.settings")
+application = get_wsgi_application()

@@ -1,0 +1,50 @@
+"""Personas shared by every test: anonymous, technician, lead and office staff."""
+
+from __future__ import annotations
+
+import pytest
+from django.test import Client
+
+from shop import roles
+from tests.factories import make_user
+
+
+@pytest.fixture
+def technician(db):
+    return make_user(roles.TECHNICIAN, first_name="Test", last_name="Technician")
+
+
+@pytest.fixture
+def lead(db):
+    return make_user(roles.LEAD, first_name="Test", last_name="Lead")
+
+
+@pytest.fixture
+def office(db):
+    return make_user(roles.OFFICE, first_name="Test", last_name="Office", is_staff=True)
+
+
+def _client_for(user) -> Client:
+    client = Client()
+    client.force_login(user)
+    return client
+
+
+@pytest.fixture
+def anon_client() -> Client:
+    return Client()
+
+
+@pytest.fixture
+def technician_client(technician) -> Client:
+    return _client_for(technician)
+
+
+@pytest.fixture
+def lead_client(lead) -> Client:
+    return _client_for(lead)
+
+
+@pytest.fixture
+def office_client(office) -> Client:
+    return _client_for(office)
