@@ -112,8 +112,9 @@ else:
                 "init_command": "PRAGMA journal_mode=WAL; PRAGMA synchronous=NORMAL;",
             },
             # A file, not memory, so tests run on the same journal mode as the shop does
-            # and the live server thread of the browser tests shares it.
-            "TEST": {"NAME": VAR_DIR / "test-ampwright.sqlite3"},
+            # and the live server thread of the browser tests shares it; one file per
+            # test process so two runs side by side never share a database.
+            "TEST": {"NAME": VAR_DIR / f"test-ampwright-{os.getpid()}.sqlite3"},
         }
     }
 

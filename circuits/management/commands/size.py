@@ -106,9 +106,7 @@ class Command(BaseCommand):
     def _input(options: dict[str, Any]) -> CircuitInput:
         size_text = options["size"]
         return CircuitInput(
-            system_voltage_v=_number(
-                options["volts"], "voltage", "volt", "[electric_potential]"
-            ),
+            system_voltage_v=_number(options["volts"], "voltage", "volt", "[electric_potential]"),
             current_a=_number(options["amps"], "current", "ampere", "[current]"),
             length_m=parse_length(options["length"]),
             size=parse_size(size_text) if size_text is not None else None,

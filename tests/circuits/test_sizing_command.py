@@ -1,0 +1,96 @@
+"""``python manage.py size``, run as the shop would run it: in a subprocess."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from circuits.sizing import CAUTION
+
+ROOT = Path(__file__).resolve().parents[2]
+
+
+def run(*args: str) -> subprocess.CompletedProcess[str]:
+    return subprocess.run(
+        [sys.executable, "manage.py", "size", *args],
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+        encoding="utf-8",
+        timeout=120,
+        check=False,
+    )
+
+
+def test_json_output_recommends_and_evaluates() -> None:
+    # 12 V, 20 A, 10 ft one way: 12 AWG is the smallest within 10 % drop (see
+    # test_sizing_recommendation); the evaluated 10 AWG carries 60 A at 105 °C
+    # (33 CFR 183.425 Table 5).
+    done = run("--volts", "12", "--amps", "20", "--length", "10 ft", "--size", "10", "--json")
+    assert done.returncode == 0, done.stderr
+    data = json.loads(done.stdout)
+    assert data["recommended_size"] == "12 AWG"
+    assert data["size"] == "10 AWG"
+    assert data["ampacity_a"] == 60
+    # NEC Chapter 9 Table 8: 10 AWG 1.24 ohm/kft at 75 °C, x 339.5/309.5 at 105 °C.
+    assert data["resistance_ohm_per_m"] == pytest.approx(1.24 / 304.8 * 339.5 / 309.5)
+    hand_v = 20 * 1.24 / 304.8 * 339.5 / 309.5 * 2 * 10 * 0.3048
+    assert data["voltage_drop_v"] == pytest.approx(hand_v)
+    assert data["voltage_drop_pct"] == pytest.approx(100 * hand_v / 12)
+    assert data["max_protection_a"] == 60 and data["min_protection_a"] == 20
+    assert isinstance(data["findings"], list)
+
+
+def test_json_findings_have_code_severity_message_and_source() -> None:
+    done = run("--volts", "12", "--amps", "400", "--length", "1 m", "--size", "4", "--json")
+    assert done.returncode == 0, done.stderr
+    findings = json.loads(done.stdout)["findings"]
+    aught = next(f for f in findings if f["code"] == "SIZE_NOTATION_AUGHT")
+    assert aught["severity"] == "blocking" and "4/0" in aught["message"]
+    assert all(set(f) == {"code", "severity", "message", "source"} for f in findings)
+
+
+def test_readable_summary_ends_with_the_caution() -> None:
+    done = run("--volts", "24", "--amps", "30", "--length", "3 m", "--critical", "--tinned")
+    assert done.returncode == 0, done.stderr
+    assert "Recommended:" in done.stdout
+    assert done.stdout.strip().splitlines()[-1] == CAUTION
+
+
+def test_all_options_are_accepted_together() -> None:
+    done = run(
+        "--volts", "120", "--amps", "16", "--length", "120 in", "--size", "12",
+        "--insulation", "90", "--engine-space", "--bundled", "4", "--parallel", "1",
+        "--drop", "5", "--continuous", "--protection", "20", "--temp", "60", "--ac", "--json",
+    )  # fmt: skip
+    assert done.returncode == 0, done.stderr
+    data = json.loads(done.stdout)
+    assert data["size"] == "12 AWG" and data["drop_limit_pct"] == 5
+    assert data["conductor_temp_c"] == 60
+
+
+@pytest.mark.parametrize(
+    ("args", "fragment"),
+    [
+        (["--amps", "0", "--length", "10 ft"], "current must be greater than zero"),
+        (["--amps", "-5", "--length", "10 ft"], "current must be greater than zero"),
+        (["--amps", "20", "--length", "0 m"], "length must be greater than zero"),
+        (["--amps", "20", "--length", "-3 m"], "length must be greater than zero"),
+        (["--amps", "20", "--length", "10 ft", "--size", "5"], "Accepted forms"),
+        (["--amps", "20", "--length", "10 ft", "--insulation", "70"], "insulation rating 70"),
+        (["--amps", "20", "--length", "10 kg"], "not a length"),
+        (["--amps", "20", "--length", "10"], "no unit"),
+        (["--amps", "20", "--length", "10 ft", "--bundled", "0"], "at least 1"),
+    ],
+)
+def test_bad_input_exits_2_with_one_line_and_no_traceback(args: list[str], fragment: str) -> None:
+    done = run("--volts", "12", *args)
+    assert done.returncode == 2
+    lines = done.stderr.strip().splitlines()
+    assert len(lines) == 1 and fragment in lines[0]
+    assert "Traceback" not in done.stderr
+    assert done.stdout == ""
