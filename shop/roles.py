@@ -26,12 +26,48 @@ _EDIT_RECORDS = [
     "shop.change_job",
 ]
 
-ROLE_PERMISSIONS: dict[str, list[str]] = {  # mirrored by migration 0002
-    TECHNICIAN: [*_VIEW_SHOP],
-    LEAD: [*_VIEW_SHOP, *_EDIT_RECORDS],
+_VIEW_SYSTEM = [
+    "circuits.view_device",
+    "circuits.view_terminal",
+    "circuits.view_circuit",
+    "circuits.view_termination",
+    "circuits.view_torquedefault",
+    "circuits.view_waiver",
+]
+# Technicians write down what they install; leads and office also remove it.
+_EDIT_SYSTEM = [
+    "circuits.add_device",
+    "circuits.change_device",
+    "circuits.add_terminal",
+    "circuits.change_terminal",
+    "circuits.delete_terminal",
+    "circuits.add_circuit",
+    "circuits.change_circuit",
+    "circuits.change_termination",
+]
+_REMOVE_SYSTEM = ["circuits.delete_device", "circuits.delete_circuit"]
+
+# Mirrored, frozen, by the data migrations shop/0002_staff_roles and circuits/0002_roles.
+ROLE_PERMISSIONS: dict[str, list[str]] = {
+    TECHNICIAN: [*_VIEW_SHOP, *_VIEW_SYSTEM, *_EDIT_SYSTEM],
+    LEAD: [
+        *_VIEW_SHOP,
+        *_EDIT_RECORDS,
+        *_VIEW_SYSTEM,
+        *_EDIT_SYSTEM,
+        *_REMOVE_SYSTEM,
+        "circuits.add_waiver",
+        "circuits.delete_waiver",
+    ],
     OFFICE: [
         *_VIEW_SHOP,
         *_EDIT_RECORDS,
+        *_VIEW_SYSTEM,
+        *_EDIT_SYSTEM,
+        *_REMOVE_SYSTEM,
+        "circuits.add_torquedefault",
+        "circuits.change_torquedefault",
+        "circuits.delete_torquedefault",
         "shop.delete_owner",
         "shop.delete_vehicle",
         "shop.delete_job",

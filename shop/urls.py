@@ -2,7 +2,7 @@ from __future__ import annotations
 
 from django.contrib import admin
 from django.contrib.auth import views as auth_views
-from django.urls import path
+from django.urls import include, path
 from django.views.generic import RedirectView
 
 from shop.views import jobs, records
@@ -22,5 +22,6 @@ urlpatterns = [
     path("vehicles/new/", records.vehicle_new, name="vehicle_new"),
     path("vehicles/<int:pk>/", records.vehicle_detail, name="vehicle_detail"),
     path("vehicles/<int:pk>/edit/", records.vehicle_edit, name="vehicle_edit"),
+    path("", include("circuits.urls")),
     path("admin/", admin.site.urls),
 ]

@@ -9,6 +9,7 @@ from django.http import HttpRequest, HttpResponse
 from django.shortcuts import redirect, render
 from django.views.decorators.http import require_GET, require_http_methods
 
+from circuits.system import job_system_report
 from shop.forms import JobForm, JobSearchForm
 from shop.models import Job
 from shop.services import job_create, job_update
@@ -37,7 +38,8 @@ def job_list(request: HttpRequest) -> HttpResponse:
 @require_GET
 def job_detail(request: HttpRequest, number: str) -> HttpResponse:
     job = _get_job_for_user(request.user, number)
-    return render(request, "shop/job_detail.html", {"job": job})
+    context = {"job": job, "system": job_system_report(job)}
+    return render(request, "shop/job_detail.html", context)
 
 
 @login_required

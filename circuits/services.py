@@ -1,0 +1,127 @@
+"""Writes to a job's electrical system: circuits with their terminations, and waivers."""
+
+from __future__ import annotations
+
+from django.core.exceptions import PermissionDenied, ValidationError
+from django.db import transaction
+
+from circuits.models import Circuit, Termination, TorqueDefault, Waiver
+from shop.models import ShopProfile
+
+MIN_WAIVER_REASON = 15
+
+
+def _expected_ends(circuit: Circuit) -> set[tuple[str, str, int]]:
+    """(end, polarity, index) for every conductor end the circuit has: each conductor runs
+    `parallel` times and has two ends."""
+    return {
+        (end, polarity, index)
+        for polarity in circuit.polarities()
+        for index in range(1, circuit.parallel + 1)
+        for end in (Termination.End.FROM, Termination.End.TO)
+    }
+
+
+def _terminal_for(circuit: Circuit, end: str, polarity: str):
+    """The device terminal an end lands on: the circuit's chosen terminal when its
+    polarity matches, else the device's only terminal of that polarity."""
+    device = circuit.from_device if end == Termination.End.FROM else circuit.to_device
+    chosen = circuit.from_terminal if end == Termination.End.FROM else circuit.to_terminal
+    if chosen is not None and chosen.polarity == polarity:
+        return chosen
+    matches = [t for t in device.terminals.all() if t.polarity == polarity]
+    return matches[0] if len(matches) == 1 else None
+
+
+def termination_spec_fill(termination: Termination) -> None:
+    """Fill a termination's torque spec: the device manual's value wins, then the shop
+    default for its stud size and kind; otherwise it stays 'not set'."""
+    terminal = termination.terminal
+    if terminal is not None and terminal.stud_size and not termination.stud_size:
+        termination.stud_size = terminal.stud_size
+    if terminal is not None and terminal.manual_torque_value is not None:
+        termination.torque_value = terminal.manual_torque_value
+        termination.torque_unit = terminal.manual_torque_unit
+        termination.torque_tolerance_pct = ShopProfile.load().default_torque_tolerance_pct
+        termination.torque_source = Termination.SpecSource.MANUAL
+        termination.torque_source_note = f"{terminal.device.name} manual"
+        return
+    default = TorqueDefault.objects.filter(
+        stud_size=termination.stud_size, kind=termination.kind
+    ).first()
+    if default is not None:
+        termination.torque_value = default.value
+        termination.torque_unit = default.unit
+        termination.torque_tolerance_pct = default.tolerance_pct
+        termination.torque_source = Termination.SpecSource.SHOP_DEFAULT
+        termination.torque_source_note = default.source
+
+
+def terminations_sync(*, circuit: Circuit) -> list[Termination]:
+    """Make the circuit's terminations match its conductors: create the missing ends (with
+    their torque spec filled), remove ends the circuit no longer has."""
+    expected = _expected_ends(circuit)
+    existing = {(t.end, t.polarity, t.conductor_index): t for t in circuit.terminations.all()}
+    surplus = [t.pk for key, t in existing.items() if key not in expected]
+    if surplus:
+        Termination.objects.filter(pk__in=surplus).delete()
+    created = []
+    for end, polarity, index in sorted(expected - existing.keys()):
+        termination = Termination(
+            circuit=circuit,
+            end=end,
+            polarity=polarity,
+            conductor_index=index,
+            terminal=_terminal_for(circuit, end, polarity),
+        )
+        termination_spec_fill(termination)
+        termination.full_clean()
+        termination.save()
+        created.append(termination)
+    return created
+
+
+def circuit_create(*, job, **fields) -> Circuit:
+    with transaction.atomic():
+        circuit = Circuit(job=job, **fields)
+        circuit.full_clean()
+        circuit.save()
+        terminations_sync(circuit=circuit)
+    return circuit
+
+
+def circuit_update(*, circuit: Circuit, **fields) -> Circuit:
+    with transaction.atomic():
+        for name, value in fields.items():
+            setattr(circuit, name, value)
+        circuit.full_clean()
+        circuit.save()
+        terminations_sync(circuit=circuit)
+    return circuit
+
+
+def waiver_create(*, job, code: str, subject: str, reason: str, lead) -> Waiver:
+    """A lead accepts one current finding in writing."""
+    from circuits.system import job_system_report
+
+    if not lead.has_perm("circuits.add_waiver"):
+        raise PermissionDenied("Only a lead can waive a finding.")
+    reason = (reason or "").strip()
+    if len(reason) < MIN_WAIVER_REASON:
+        raise ValidationError(
+            {"reason": f"Explain the waiver in at least {MIN_WAIVER_REASON} characters."}
+        )
+    with transaction.atomic():
+        report = job_system_report(job)
+        current = {(f.code, f.subject) for f in report.all_findings}
+        if (code, subject) not in current:
+            raise ValidationError("That finding is no longer raised; nothing to waive.")
+        if Waiver.objects.filter(job=job, code=code, subject=subject).exists():
+            raise ValidationError("This finding is already waived.")
+        return Waiver.objects.create(job=job, code=code, subject=subject, reason=reason, lead=lead)
+
+
+def waiver_withdraw(*, waiver: Waiver, user) -> None:
+    if not user.has_perm("circuits.delete_waiver"):
+        raise PermissionDenied("Only a lead can withdraw a waiver.")
+    waiver.delete()

@@ -1,0 +1,162 @@
+"""A job's whole electrical system, evaluated: the sizing engine on every circuit plus the
+whole-system rules (circuits.rules), with leads' waivers matched to the findings.
+
+Nothing here is stored: call `job_system_report(job)` whenever a page needs findings.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass, field
+
+from circuits.models import Circuit, Device, Waiver
+from circuits.sizing import (
+    SEVERITY_ORDER,
+    CircuitInput,
+    Finding,
+    Report,
+    SizeNotationError,
+    SizingError,
+    parse_size,
+    size_circuit,
+)
+
+SYSTEM_SUBJECT = "system"
+
+
+@dataclass
+class SystemFinding:
+    """A finding placed in the system: what it is about (`subject`: a circuit tag, a device
+    name or "system"), the circuits it names, and the waiver that accepts it, if any."""
+
+    code: str
+    severity: str
+    message: str
+    source: str
+    subject: str
+    circuits: tuple[str, ...] = ()
+    waiver: Waiver | None = None
+
+    @property
+    def waived(self) -> bool:
+        return self.waiver is not None
+
+    @property
+    def open_blocking(self) -> bool:
+        return self.severity == "blocking" and not self.waived
+
+    @property
+    def rank(self) -> tuple[int, int]:
+        # Waived findings sort after open ones of the same severity.
+        return (SEVERITY_ORDER[self.severity], 1 if self.waived else 0)
+
+    @classmethod
+    def from_finding(cls, finding: Finding, *, subject: str, circuits: Iterable[str] = ()):
+        return cls(
+            code=finding.code,
+            severity=finding.severity,
+            message=finding.message,
+            source=finding.source,
+            subject=subject,
+            circuits=tuple(circuits),
+        )
+
+
+@dataclass
+class CircuitSizing:
+    """One circuit and what the sizing engine says of it (or why it could not size it)."""
+
+    circuit: Circuit
+    report: Report | None
+    error: str | None = None
+    findings: list[SystemFinding] = field(default_factory=list)
+
+    @property
+    def worst(self) -> SystemFinding | None:
+        return min(self.findings, key=lambda f: f.rank, default=None)
+
+
+@dataclass
+class SystemReport:
+    devices: list[Device]
+    circuits: list[CircuitSizing]
+    system_findings: list[SystemFinding]
+
+    def by_tag(self) -> dict[str, CircuitSizing]:
+        return {c.circuit.tag: c for c in self.circuits}
+
+    @property
+    def all_findings(self) -> list[SystemFinding]:
+        found = [f for c in self.circuits for f in c.findings] + self.system_findings
+        return sorted(found, key=lambda f: f.rank)
+
+    @property
+    def open_blocking(self) -> list[SystemFinding]:
+        return [f for f in self.all_findings if f.open_blocking]
+
+
+def circuit_input(circuit: Circuit, *, size_override: str | None = None) -> CircuitInput:
+    """The sizing engine's input for a circuit. Raises SizingError/SizeNotationError."""
+    size_text = size_override if size_override is not None else circuit.conductor_size
+    size = parse_size(size_text) if size_text else None
+    return CircuitInput(
+        system_voltage_v=float(circuit.nominal_voltage),
+        current_a=float(circuit.design_current_a),
+        length_m=float(circuit.length_m),
+        size=size,
+        size_text=size_text or None,
+        insulation_c=int(circuit.insulation_c),
+        engine_space=circuit.engine_space,
+        bundled=int(circuit.bundled),
+        parallel=int(circuit.parallel),
+        critical=circuit.critical,
+        continuous=circuit.continuous,
+        protection_a=float(circuit.protection_a) if circuit.protection_a is not None else None,
+        tinned=circuit.tinned,
+        ac=circuit.is_ac,
+    )
+
+
+def size_one(circuit: Circuit) -> CircuitSizing:
+    try:
+        report = size_circuit(circuit_input(circuit))
+    except (SizingError, SizeNotationError) as exc:
+        return CircuitSizing(circuit=circuit, report=None, error=str(exc))
+    sizing = CircuitSizing(circuit=circuit, report=report)
+    sizing.findings = [
+        SystemFinding.from_finding(f, subject=circuit.tag, circuits=[circuit.tag])
+        for f in report.findings
+    ]
+    return sizing
+
+
+# Whole-system rules: each takes (devices, circuits, vehicle) and returns SystemFindings.
+Rule = Callable[[list[Device], list[Circuit], object], list[SystemFinding]]
+
+
+def _rules() -> list[Rule]:
+    from circuits.rules import RULES
+
+    return list(RULES)
+
+
+def job_system_report(job) -> SystemReport:
+    devices = list(job.devices.prefetch_related("terminals"))
+    circuits = list(job.circuits.for_schedule())
+    sizings = [size_one(c) for c in circuits]
+    system_findings: list[SystemFinding] = []
+    for rule in _rules():
+        system_findings.extend(rule(devices, circuits, job.vehicle))
+    # A rule finding about a single circuit is shown with that circuit too.
+    by_tag = {s.circuit.tag: s for s in sizings}
+    for finding in system_findings:
+        if finding.subject in by_tag:
+            by_tag[finding.subject].findings.append(finding)
+    waivers = {(w.code, w.subject): w for w in job.waivers.select_related("lead")}
+    for finding in [f for s in sizings for f in s.findings] + system_findings:
+        finding.waiver = waivers.get((finding.code, finding.subject))
+    for s in sizings:
+        s.findings.sort(key=lambda f: f.rank)
+    system_only = [f for f in system_findings if f.subject not in by_tag]
+    system_only.sort(key=lambda f: f.rank)
+    return SystemReport(devices=devices, circuits=sizings, system_findings=system_only)
