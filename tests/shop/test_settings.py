@@ -73,3 +73,13 @@ def test_secret_key_is_generated_once_into_the_var_folder(tmp_path):
     second = _run("shell", "--no-imports", "-c", code, **env).stdout.strip()
     assert len(first) >= 50
     assert first == second == (tmp_path / "secret_key").read_text().strip()
+
+
+@pytest.mark.skipif(not os.environ.get("DATABASE_URL"), reason="only with DATABASE_URL")
+@pytest.mark.django_db
+def test_database_url_selects_postgresql_through_psycopg3():
+    assert connection.vendor == "postgresql"
+    import psycopg
+
+    assert connection.connection.__class__.__module__.startswith("psycopg")
+    assert psycopg.__version__.startswith("3.")
