@@ -16,6 +16,17 @@ from django.urls import reverse
 
 from circuits.sizing import SizeNotationError, parse_size
 
+FOOT_M = 0.3048  # exact by definition (NIST SP 811)
+
+
+def format_length(metres: float | None, unit: str) -> str:
+    """A stored length shown back in the unit it was entered in: "10 ft", "3.5 m"."""
+    if metres is None:
+        return ""
+    value = metres / FOOT_M if unit == "ft" else metres
+    return f"{round(value, 2):g} {unit}"
+
+
 INSULATION_RATINGS = [(t, f"{t} °C") for t in (60, 75, 80, 90, 105, 125, 200)]
 
 
@@ -316,6 +327,14 @@ class Circuit(models.Model):
     @property
     def is_ac(self) -> bool:
         return self.role in (self.Role.SHORE_SUPPLY, self.Role.AC_BRANCH)
+
+    @property
+    def length_display(self) -> str:
+        return format_length(self.length_m, self.length_unit)
+
+    @property
+    def protection_distance_display(self) -> str:
+        return format_length(self.protection_distance_m, self.length_unit)
 
     @property
     def size_label(self) -> str:

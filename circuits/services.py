@@ -57,14 +57,47 @@ def termination_spec_fill(termination: Termination) -> None:
         termination.torque_source_note = default.source
 
 
+def _repoint(circuit: Circuit, termination: Termination) -> bool:
+    """Move a kept end to the terminal it now lands on, when the circuit's device or chosen
+    terminal changed; its torque spec described the old stud, so it is filled afresh.
+    Returns True when the termination changed."""
+    end, polarity = termination.end, termination.polarity
+    device = circuit.from_device if end == Termination.End.FROM else circuit.to_device
+    chosen = circuit.from_terminal if end == Termination.End.FROM else circuit.to_terminal
+    wanted = _terminal_for(circuit, end, polarity)
+    current = termination.terminal
+    stale = current is not None and current.device_id != device.pk
+    unset = current is None and wanted is not None
+    rechosen = (
+        chosen is not None and chosen.polarity == polarity and termination.terminal_id != chosen.pk
+    )
+    if not (stale or unset or rechosen):
+        return False
+    termination.terminal = wanted
+    termination.stud_size = ""
+    termination.torque_value = None
+    termination.torque_source = Termination.SpecSource.NONE
+    termination.torque_source_note = ""
+    termination_spec_fill(termination)
+    return True
+
+
 def terminations_sync(*, circuit: Circuit) -> list[Termination]:
     """Make the circuit's terminations match its conductors: create the missing ends (with
-    their torque spec filled), remove ends the circuit no longer has."""
+    their torque spec filled), remove ends the circuit no longer has, and move kept ends
+    whose device or chosen terminal changed."""
     expected = _expected_ends(circuit)
-    existing = {(t.end, t.polarity, t.conductor_index): t for t in circuit.terminations.all()}
+    existing = {
+        (t.end, t.polarity, t.conductor_index): t
+        for t in circuit.terminations.select_related("terminal")
+    }
     surplus = [t.pk for key, t in existing.items() if key not in expected]
     if surplus:
         Termination.objects.filter(pk__in=surplus).delete()
+    for key, termination in existing.items():
+        if key in expected and _repoint(circuit, termination):
+            termination.full_clean()
+            termination.save()
     created = []
     for end, polarity, index in sorted(expected - existing.keys()):
         termination = Termination(
@@ -79,6 +112,15 @@ def terminations_sync(*, circuit: Circuit) -> list[Termination]:
         termination.save()
         created.append(termination)
     return created
+
+
+def device_save(*, form, terminals):
+    """Save a bound, valid device form and its terminal formset together or not at all."""
+    with transaction.atomic():
+        device = form.save()
+        terminals.instance = device
+        terminals.save()
+    return device
 
 
 def circuit_create(*, job, **fields) -> Circuit:

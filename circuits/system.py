@@ -6,7 +6,7 @@ Nothing here is stored: call `job_system_report(job)` whenever a page needs find
 
 from __future__ import annotations
 
-from collections.abc import Callable, Iterable
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 
 from circuits.models import Circuit, Device, Waiver
@@ -130,8 +130,11 @@ def size_one(circuit: Circuit) -> CircuitSizing:
     return sizing
 
 
-# Whole-system rules: each takes (devices, circuits, vehicle) and returns SystemFindings.
-Rule = Callable[[list[Device], list[Circuit], object], list[SystemFinding]]
+# Whole-system rules: each takes (devices, circuits, vehicle, sizings) and returns
+# SystemFindings; `sizings` maps circuit tag -> CircuitSizing so no rule re-sizes a circuit.
+Rule = Callable[
+    [list[Device], list[Circuit], object, Mapping[str, CircuitSizing]], list[SystemFinding]
+]
 
 
 def _rules() -> list[Rule]:
@@ -140,23 +143,36 @@ def _rules() -> list[Rule]:
     return list(RULES)
 
 
-def job_system_report(job) -> SystemReport:
-    devices = list(job.devices.prefetch_related("terminals"))
-    circuits = list(job.circuits.for_schedule())
+def system_report_from(
+    devices: list[Device],
+    circuits: list[Circuit],
+    vehicle,
+    waivers: Iterable[Waiver] = (),
+) -> SystemReport:
+    """Evaluate a system given in memory: the sizing engine on each circuit, every rule
+    across them, waivers matched by (code, subject). `job_system_report` feeds it from the
+    database; a live preview can feed it an unsaved circuit in place of the stored one."""
     sizings = [size_one(c) for c in circuits]
+    by_tag = {s.circuit.tag: s for s in sizings}
     system_findings: list[SystemFinding] = []
     for rule in _rules():
-        system_findings.extend(rule(devices, circuits, job.vehicle))
+        system_findings.extend(rule(devices, circuits, vehicle, by_tag))
     # A rule finding about a single circuit is shown with that circuit too.
-    by_tag = {s.circuit.tag: s for s in sizings}
     for finding in system_findings:
         if finding.subject in by_tag:
             by_tag[finding.subject].findings.append(finding)
-    waivers = {(w.code, w.subject): w for w in job.waivers.select_related("lead")}
+    by_key = {(w.code, w.subject): w for w in waivers}
     for finding in [f for s in sizings for f in s.findings] + system_findings:
-        finding.waiver = waivers.get((finding.code, finding.subject))
+        finding.waiver = by_key.get((finding.code, finding.subject))
     for s in sizings:
         s.findings.sort(key=lambda f: f.rank)
     system_only = [f for f in system_findings if f.subject not in by_tag]
     system_only.sort(key=lambda f: f.rank)
     return SystemReport(devices=devices, circuits=sizings, system_findings=system_only)
+
+
+def job_system_report(job) -> SystemReport:
+    devices = list(job.devices.prefetch_related("terminals"))
+    circuits = list(job.circuits.for_schedule())
+    waivers = list(job.waivers.select_related("lead"))
+    return system_report_from(devices, circuits, job.vehicle, waivers)

@@ -2,26 +2,26 @@
 
 from __future__ import annotations
 
-from importlib import import_module
+from circuits.views import (
+    csv_io,
+    devices,
+    diagram,
+    editor,
+    labels,
+    schedule,
+    terminations,
+    torque_defaults,
+    waivers,
+)
 
-_MODULES = [
-    "schedule",
-    "editor",
-    "devices",
-    "terminations",
-    "waivers",
-    "torque_defaults",
-    "diagram",
-    "labels",
-    "csv_io",
+urlpatterns = [
+    *schedule.urlpatterns,
+    *editor.urlpatterns,
+    *devices.urlpatterns,
+    *terminations.urlpatterns,
+    *waivers.urlpatterns,
+    *torque_defaults.urlpatterns,
+    *diagram.urlpatterns,
+    *labels.urlpatterns,
+    *csv_io.urlpatterns,
 ]
-
-urlpatterns = []
-for _name in _MODULES:
-    try:
-        _module = import_module(f"circuits.views.{_name}")
-    except ModuleNotFoundError as exc:  # a feature module not written yet
-        if exc.name != f"circuits.views.{_name}":
-            raise
-        continue
-    urlpatterns += _module.urlpatterns

@@ -1,4 +1,5 @@
-"""Demo scenario: an invented conversion shop, its staff, owners, vehicles and jobs.
+"""Demo scenario: an invented conversion shop, its staff, owners, vehicles and jobs, and the
+jobs' electrical systems (circuits.demo).
 
 Everything here is made up for showing the app. Loading is idempotent: records are found
 by stable keys (username, owner email, vehicle identification, job title per vehicle)
@@ -15,6 +16,7 @@ from django.contrib.auth.models import Group
 from django.db import transaction
 from django.utils import timezone
 
+from circuits import demo as circuits_demo
 from shop import roles
 from shop.models import Job, Owner, ShopProfile, Vehicle
 from shop.services import job_create
@@ -250,4 +252,7 @@ def load() -> list[tuple[str, str, str]]:
                 created_at=now - datetime.timedelta(days=days_ago),
                 technicians=[users[t] for t in techs],
             )
+
+        # Each demo job's electrical system, and the shop's default torque specs.
+        circuits_demo.load(lead=users["june"])
     return [(username, role, password) for username, _, _, role, password in STAFF]

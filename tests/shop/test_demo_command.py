@@ -1,5 +1,5 @@
-"""The demo command: loads the invented shop, changes nothing the second time, and refuses
-to mix with real records unless forced."""
+"""The demo command: loads the invented shop and its jobs' electrical systems, changes
+nothing the second time, and refuses to mix with real records unless forced."""
 
 from __future__ import annotations
 
@@ -9,6 +9,8 @@ import pytest
 from django.contrib.auth import get_user_model
 from django.core.management import CommandError, call_command
 
+from circuits.models import Circuit, Device, Terminal, Termination, TorqueDefault, Waiver
+from circuits.system import job_system_report
 from shop import roles
 from shop.models import Job, Owner, Vehicle
 from tests.factories import make_owner
@@ -23,6 +25,12 @@ def _snapshot() -> dict:
         "vehicles": list(Vehicle.objects.order_by("pk").values()),
         "jobs": list(Job.objects.order_by("pk").values()),
         "users": list(User.objects.order_by("pk").values()),
+        "devices": list(Device.objects.order_by("pk").values()),
+        "terminals": list(Terminal.objects.order_by("pk").values()),
+        "circuits": list(Circuit.objects.order_by("pk").values()),
+        "terminations": list(Termination.objects.order_by("pk").values()),
+        "torque_defaults": list(TorqueDefault.objects.order_by("pk").values()),
+        "waivers": list(Waiver.objects.order_by("pk").values()),
     }
 
 
@@ -41,6 +49,73 @@ def test_demo_loads_the_promised_scenario():
     assert "password" in out.getvalue()
 
 
+def _job(kind: str, dc_voltage: int) -> Job:
+    return (
+        Job.objects.filter(vehicle__kind=kind, vehicle__dc_voltage=dc_voltage)
+        .exclude(circuits=None)
+        .distinct()
+        .get()
+    )
+
+
+def _codes(job: Job, *, open_only: bool = False) -> set[str]:
+    found = job_system_report(job).all_findings
+    return {f.code for f in found if not (open_only and f.waived)}
+
+
+def test_demo_loads_electrical_systems():
+    call_command("demo", stdout=io.StringIO())
+    van = _job("van", 12)
+    circuits = van.circuits.all()
+    roles_ = [c.role for c in circuits]
+    assert van.devices.filter(kind="battery").count() == 2
+    assert roles_.count("interconnect") >= 1 and "main_feed" in roles_ and "shore" in roles_
+    assert 10 <= sum(r in ("dc_branch", "ac_branch") for r in roles_) <= 20
+    kinds = set(van.devices.values_list("kind", flat=True))
+    assert {"charge_controller", "dc_dc_charger", "alternator", "inverter_charger"} <= kinds
+    assert {"shore_inlet", "busbar"} <= kinds
+    assert van.devices.get(kind="inverter_charger").input_current_a == 30
+    assert van.devices.get(kind="alternator").mounting == "engine"
+    for kind, volts in (("truck_camper", 24), ("motorhome", 48), ("boat", 12)):
+        assert 6 <= _job(kind, volts).circuits.count() <= 14, kind
+    # Every circuit got its terminations: one per conductor end.
+    for circuit in Circuit.objects.all():
+        ends = 2 * len(circuit.polarities()) * circuit.parallel
+        assert circuit.terminations.count() == ends, circuit.tag
+
+
+def test_demo_seeds_torque_defaults_so_terminations_get_specs():
+    call_command("demo", stdout=io.StringIO())
+    # Telecom power-plant minimum for wire connectors on 5/16 in hardware: 100 lbf·in
+    # (standards reference, section 9; the shop applies it to M8 too).
+    m8 = TorqueDefault.objects.get(stud_size="M8", kind="lug")
+    assert m8.value == 100 and m8.unit == "lbf*in" and "Telecom" in m8.source
+    sources = set(Termination.objects.values_list("torque_source", flat=True))
+    assert {"manual", "shop_default"} <= sources  # the battery manual's value wins at its studs
+
+
+def test_demo_rules_find_a_few_realistic_problems():
+    call_command("demo", stdout=io.StringIO())
+    van = _codes(_job("van", 12), open_only=True)
+    assert {"BOTTLENECK_INTERCONNECT", "SHORE_BELOW_INPUT_SETTING"} <= van
+    assert "COLOUR_BLACK_DC_AND_AC" in van
+    assert "SLACK_SERVICE_LOOP" in _codes(_job("truck_camper", 24))
+    assert "COLOUR_SPLICE_CHANGE" in _codes(_job("motorhome", 48))
+    boat = _codes(_job("boat", 12))
+    assert {"SIZE_NOTATION_MISMATCH", "CONSTRUCTION_UNTINNED_MARINE"} <= boat
+    # A few, not a flood: each system has at most a handful of open blocking findings.
+    for job in Job.objects.exclude(circuits=None).distinct():
+        assert len(job_system_report(job).open_blocking) <= 5, job.title
+
+
+def test_demo_shows_a_leads_waiver():
+    call_command("demo", stdout=io.StringIO())
+    waiver = Waiver.objects.get()
+    assert waiver.lead.username == "june" and waiver.code == "PROTECTION_TOO_FAR"
+    [waived] = [f for f in job_system_report(waiver.job).all_findings if f.waived]
+    assert waived.subject == waiver.subject
+
+
 def test_running_demo_twice_changes_nothing():
     call_command("demo", stdout=io.StringIO())
     before = _snapshot()
@@ -53,6 +128,7 @@ def test_demo_refuses_a_database_with_real_records():
     with pytest.raises(CommandError, match="not demo data"):
         call_command("demo", stdout=io.StringIO())
     assert not Job.objects.exists()
+    assert not Device.objects.exists() and not TorqueDefault.objects.exists()
 
 
 def test_force_loads_beside_real_records():
@@ -60,6 +136,7 @@ def test_force_loads_beside_real_records():
     call_command("demo", "--force", stdout=io.StringIO())
     assert Owner.objects.filter(name="A Real Customer").exists()
     assert Job.objects.count() >= 5
+    assert Circuit.objects.exists()
 
 
 def test_demo_staff_can_sign_in(client):

@@ -1,0 +1,434 @@
+"""The circuit schedule as CSV: export a job's circuits, import them back.
+
+One column set both ways (`COLUMNS`, documented in `COLUMN_HELP` and on the import page):
+
+- Choices are written as their values (`interconnect`, `fine`, `green_yellow`); an import
+  also accepts the labels shown in the app (`Battery interconnect`, `Fine-stranded`).
+- Yes/no columns are `yes` or `no` (`true`/`false`, `y`/`n`, `1`/`0` also read).
+- `length` is the one-way length with its unit, `3.5 m` or `12 ft`; the unit is kept as
+  the circuit's display unit. `protection_distance_m` is in metres (a unit may be given).
+- Devices and terminals are named as recorded on the job; they must exist already.
+- Row numbers count the header as row 1, as a spreadsheet shows them.
+- An import creates circuits with new tags and updates those whose tag exists; a column
+  left out keeps each updated circuit's value (a new circuit takes the default), and an
+  empty cell means the default. Nothing is deleted.
+- If any row is wrong the whole file is refused, every error is listed and nothing is
+  saved; otherwise all rows are written in one transaction through circuits.services.
+- A text cell starting with = + - @ is written with a leading ' so a spreadsheet does not
+  run it as a formula; that ' is dropped again on import.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+from dataclasses import dataclass, field
+from decimal import Decimal, InvalidOperation
+
+from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
+from django.db import transaction
+
+from circuits.forms import parse_length_entry
+from circuits.models import Circuit, Colour, Device
+from circuits.services import circuit_create, circuit_update
+from circuits.sizing import UnitError, parse_length
+
+MAX_ROWS = 2000
+FOOT = 0.3048  # metres, exact by definition
+
+_BOOLEANS = [
+    "continuous", "critical", "tinned", "engine_space", "splice", "tape_remarked",
+    "service_loop_confirmed",
+]  # fmt: skip
+_CHOICES = {
+    "role": Circuit.Role,
+    "conductors": Circuit.Conductors,
+    "construction": Circuit.Construction,
+    "protection_type": Circuit.ProtectionType,
+    "colour_a": Colour,
+    "colour_b": Colour,
+    "colour_earth": Colour,
+    "colour_after_splice": Colour,
+}
+# (column, what it holds): the order of the export and of the import page's table.
+COLUMN_HELP: list[tuple[str, str]] = [
+    ("tag", "Unique within the job, e.g. D-07. Required."),
+    ("name", "What the circuit feeds. Required."),
+    ("role", "interconnect, main_feed, dc_branch, charging, shore, ac_branch, bonding."),
+    ("from_device", "Device name as recorded on the job. Required."),
+    ("from_terminal", "Terminal name on the from-device, or empty."),
+    ("to_device", "Device name as recorded on the job. Required."),
+    ("to_terminal", "Terminal name on the to-device, or empty."),
+    ("nominal_voltage", "Volts, e.g. 12. Required."),
+    ("design_current_a", "Amps, e.g. 20. Required."),
+    ("continuous", "yes / no: runs 3 hours or more."),
+    ("critical", "yes / no: critical load (3 % drop limit)."),
+    ("length", "One-way length with its unit: 3.5 m or 12 ft. Required."),
+    ("conductor_size", "Trade notation: 10 AWG, 4/0, 35 mm². Required."),
+    ("conductors", "pair, pos, neg, ac or earth (default pair)."),
+    ("parallel", "Conductors in parallel, 1 to 8 (default 1)."),
+    ("construction", "fine, standard, solid or cord (default fine)."),
+    ("tinned", "yes / no (default yes)."),
+    ("insulation_c", "Insulation rating in °C: 60, 75, 80, 90, 105, 125 or 200 (default 105)."),
+    ("engine_space", "yes / no."),
+    ("bundled", "Current-carrying conductors bundled, including its own (default 1)."),
+    ("colour_a", "Positive / line colour: red, black, yellow, white, blue, brown, green, …"),
+    ("colour_b", "Negative / neutral colour."),
+    ("colour_earth", "Earth colour, e.g. green_yellow."),
+    ("splice", "yes / no: the run has a splice."),
+    ("colour_after_splice", "Positive / line colour beyond the splice."),
+    ("tape_remarked", "yes / no: re-marked with tape."),
+    ("protection_type", "none, fuse or breaker (default fuse)."),
+    ("protection_a", "Rating in amps; empty when protection_type is none."),
+    ("protection_distance_m", "Distance of the protection from the source, metres."),
+    ("service_loop_confirmed", "yes / no."),
+    ("notes", "Free text."),
+]
+COLUMNS = [name for name, _ in COLUMN_HELP]
+REQUIRED = [
+    "tag", "name", "role", "from_device", "to_device", "nominal_voltage",
+    "design_current_a", "length", "conductor_size",
+]  # fmt: skip
+_TEXT = ["tag", "name", "from_device", "from_terminal", "to_device", "to_terminal"]
+_FORMULA_START = ("=", "+", "-", "@")
+# Model field -> the CSV column its errors belong to.
+_FIELD_COLUMN = {"length_m": "length", "length_unit": "length", NON_FIELD_ERRORS: None}
+
+
+class CsvFileError(ValueError):
+    """The upload is not a readable CSV text file."""
+
+
+@dataclass(frozen=True)
+class RowError:
+    row: int | None  # spreadsheet row (header = 1); None for the file as a whole
+    column: str | None
+    message: str
+
+    def __str__(self) -> str:
+        where = [f"row {self.row}" if self.row else "file"] + ([self.column] if self.column else [])
+        return f"{', '.join(where).capitalize()}: {self.message}"
+
+
+@dataclass
+class ImportResult:
+    created: list[str] = field(default_factory=list)
+    updated: list[str] = field(default_factory=list)
+    errors: list[RowError] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return not self.errors
+
+    @property
+    def saved(self) -> int:
+        return len(self.created) + len(self.updated)
+
+
+# ---- export ------------------------------------------------------------------------
+
+
+def _number(value: float | Decimal | None) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, Decimal):
+        return f"{value.normalize():f}"
+    return f"{value:.6f}".rstrip("0").rstrip(".")
+
+
+def _safe(text: str) -> str:
+    return "'" + text if text.startswith(_FORMULA_START) else text
+
+
+def _length(circuit: Circuit) -> str:
+    if circuit.length_unit == Circuit.LengthUnit.FT:
+        return f"{_number(circuit.length_m / FOOT)} ft"
+    return f"{_number(circuit.length_m)} m"
+
+
+def _row(circuit: Circuit) -> list[str]:
+    values = {
+        "from_device": circuit.from_device.name,
+        "from_terminal": circuit.from_terminal.name if circuit.from_terminal else "",
+        "to_device": circuit.to_device.name,
+        "to_terminal": circuit.to_terminal.name if circuit.to_terminal else "",
+        "length": _length(circuit),
+    }
+    for name in COLUMNS:
+        if name in values:
+            continue
+        value = getattr(circuit, name)
+        if isinstance(value, bool):
+            values[name] = "yes" if value else "no"
+        elif isinstance(value, (Decimal, float)) or value is None:
+            values[name] = _number(value)
+        else:
+            values[name] = str(value)
+    return [_safe(values[name]) for name in COLUMNS]
+
+
+def circuits_to_csv(job) -> str:
+    """The job's circuit schedule as CSV text, header first, circuits by tag."""
+    out = io.StringIO()
+    writer = csv.writer(out, lineterminator="\r\n")
+    writer.writerow(COLUMNS)
+    for circuit in job.circuits.for_schedule():
+        writer.writerow(_row(circuit))
+    return out.getvalue()
+
+
+# ---- import ------------------------------------------------------------------------
+
+
+def read_upload(data: bytes) -> str:
+    """Text of an uploaded CSV file (UTF-8, with or without a byte-order mark)."""
+    if b"\x00" in data:
+        raise CsvFileError("This is not a CSV text file. Export the sheet as CSV and try again.")
+    try:
+        return data.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise CsvFileError(
+            f"The file is not UTF-8 text (unreadable byte at position {exc.start}). "
+            "Save it as 'CSV UTF-8' and try again."
+        ) from exc
+
+
+def _choice(column: str, text: str) -> str:
+    choices = _CHOICES[column]
+    for value, label in choices.choices:
+        if text.lower() in (value.lower(), label.lower()):
+            return value
+    raise ValueError(f"{text!r} is not one of: {', '.join(choices.values)}")
+
+
+def _boolean(text: str) -> bool:
+    key = text.lower()
+    if key in ("yes", "y", "true", "1"):
+        return True
+    if key in ("no", "n", "false", "0"):
+        return False
+    raise ValueError(f"{text!r} is not yes or no")
+
+
+def _decimal(text: str, unit: str) -> Decimal:
+    cleaned = text.strip()
+    if unit and cleaned.lower().endswith(unit.lower()):  # "12 V", "20 A" read as numbers
+        cleaned = cleaned[: -len(unit)].strip()
+    try:
+        value = Decimal(cleaned)
+    except InvalidOperation:
+        raise ValueError(f"{text!r} is not a number") from None
+    if not value.is_finite():
+        raise ValueError(f"{text!r} is not a number")
+    return value
+
+
+def _integer(text: str, unit: str = "") -> int:
+    value = _decimal(text.replace("°", ""), unit)
+    if value != value.to_integral_value():
+        raise ValueError(f"{text!r} is not a whole number")
+    return int(value)
+
+
+def _length_cell(text: str) -> dict[str, object]:
+    # The same reading as the circuit editor, so "120 in" shows back in feet both ways.
+    if not any(ch.isalpha() or ch in "'\"" for ch in text):
+        raise ValueError(f"{text!r} has no unit; write the length with it, e.g. 3.5 m or 12 ft")
+    try:
+        metres, unit = parse_length_entry(text, Circuit.LengthUnit.M)
+    except ValidationError as exc:
+        raise ValueError(" ".join(exc.messages)) from None
+    return {"length_m": metres, "length_unit": unit}
+
+
+def _distance(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        try:
+            return parse_length(text)
+        except UnitError as exc:
+            raise ValueError(str(exc)) from None
+    if not math.isfinite(value) or value < 0:
+        raise ValueError(f"{text!r} is not a distance of 0 m or more")
+    return value
+
+
+class _Devices:
+    """The job's devices by name (exact, else the one whose name differs only in case)."""
+
+    def __init__(self, job) -> None:
+        self.all = list(job.devices.prefetch_related("terminals"))
+        self.exact = {d.name: d for d in self.all}
+
+    def get(self, name: str) -> Device:
+        device = self.exact.get(name)
+        matches = [d for d in self.all if d.name.lower() == name.lower()]
+        if device is None and len(matches) == 1:
+            device = matches[0]
+        if device is None:
+            raise ValueError(f"no device named {name!r} on this job; add it first")
+        return device
+
+    def terminal(self, device: Device, name: str):
+        for terminal in device.terminals.all():
+            if terminal.name == name:
+                return terminal
+        raise ValueError(f"{device.name} has no terminal named {name!r}")
+
+
+def _convert(cells: dict[str, str], devices: _Devices) -> tuple[dict, list[tuple[str, str]]]:
+    """Model field values from one row's cells; (column, message) for each bad cell."""
+    fields: dict[str, object] = {}
+    errors: list[tuple[str, str]] = []
+    for column, text in cells.items():
+        try:
+            if not text:
+                if column in REQUIRED:
+                    raise ValueError("required")
+                model_field = Circuit._meta.get_field(column)
+                fields[column] = None if model_field.null else model_field.get_default()
+            elif column in ("from_device", "to_device"):
+                fields[column] = devices.get(text)
+            elif column in ("from_terminal", "to_terminal"):
+                device = fields.get(column.replace("terminal", "device"))
+                if isinstance(device, Device):
+                    fields[column] = devices.terminal(device, text)
+            elif column in _BOOLEANS:
+                fields[column] = _boolean(text)
+            elif column in _CHOICES:
+                fields[column] = _choice(column, text)
+            elif column == "length":
+                fields.update(_length_cell(text))
+            elif column == "nominal_voltage":
+                fields[column] = _decimal(text, "V")
+            elif column in ("design_current_a", "protection_a"):
+                fields[column] = _decimal(text, "A")
+            elif column in ("parallel", "bundled"):
+                fields[column] = _integer(text)
+            elif column == "insulation_c":
+                fields[column] = _integer(text, "C")
+            elif column == "protection_distance_m":
+                fields[column] = _distance(text)
+            else:
+                fields[column] = text
+        except ValueError as exc:
+            errors.append((column, str(exc)))
+    return fields, errors
+
+
+def _header(row: list[str]) -> tuple[list[str], list[RowError]]:
+    names = [cell.strip().lower() for cell in row]
+    errors = []
+    unknown = [n for n in names if n not in COLUMNS]
+    if unknown:
+        errors.append(RowError(1, None, f"unknown columns: {', '.join(unknown)}"))
+    missing = [n for n in REQUIRED if n not in names]
+    if missing:
+        errors.append(RowError(1, None, f"missing columns: {', '.join(missing)}"))
+    twice = sorted({n for n in names if names.count(n) > 1})
+    if twice:
+        errors.append(RowError(1, None, f"columns given twice: {', '.join(twice)}"))
+    return names, errors
+
+
+def _records(text: str) -> list[list[str]]:
+    try:
+        return list(csv.reader(io.StringIO(text, newline="")))
+    except csv.Error as exc:
+        raise CsvFileError(f"The file cannot be read as CSV: {exc}.") from None
+
+
+def _validate(job, fields: dict, existing: Circuit | None) -> list[tuple[str | None, str]]:
+    """Check the circuit the row describes without saving anything."""
+    circuit = existing if existing is not None else Circuit(job=job)
+    for name, value in fields.items():
+        setattr(circuit, name, value)
+    try:
+        circuit.full_clean()
+    except ValidationError as exc:
+        return [
+            (_FIELD_COLUMN.get(name, name), message)
+            for name, messages in exc.message_dict.items()
+            for message in messages
+        ]
+    return []
+
+
+def circuits_from_csv(*, job, text: str, allow_update: bool = True) -> ImportResult:
+    """Create or update the job's circuits from CSV text, all or nothing."""
+    result = ImportResult()
+    try:
+        records = _records(text)
+    except CsvFileError as exc:
+        result.errors.append(RowError(None, None, str(exc)))
+        return result
+    if not records or not any(cell.strip() for cell in records[0]):
+        message = f"no header row; the first row names the columns: {', '.join(COLUMNS)}"
+        result.errors.append(RowError(1, None, message))
+        return result
+    names, result.errors = _header(records[0])
+    if result.errors:
+        return result
+    rows = [(i, r) for i, r in enumerate(records[1:], start=2) if any(c.strip() for c in r)]
+    if not rows:
+        result.errors.append(RowError(None, None, "the file has a header but no circuits"))
+    if len(rows) > MAX_ROWS:
+        result.errors.append(RowError(None, None, f"more than {MAX_ROWS} circuits in one file"))
+        return result
+    devices = _Devices(job)
+    current = {c.tag: c for c in job.circuits.select_related("from_device", "to_device")}
+    seen: dict[str, int] = {}
+    plan: list[tuple[int, dict, Circuit | None]] = []
+    for number, record in rows:
+        if len(record) != len(names):
+            message = f"{len(record)} cells where the header has {len(names)}"
+            result.errors.append(RowError(number, None, message))
+            continue
+        cells = {n: _unsafe(cell.strip()) for n, cell in zip(names, record, strict=True)}
+        fields, errors = _convert(cells, devices)
+        tag = cells.get("tag", "")
+        if tag in seen:
+            errors.append(("tag", f"{tag} is already on row {seen[tag]}"))
+        seen.setdefault(tag, number)
+        existing = current.get(tag)
+        if existing is not None and not allow_update:
+            errors.append(("tag", f"{tag} exists and you may not change circuits"))
+        if not errors:
+            errors = _validate(job, fields, existing)
+        result.errors += [RowError(number, column, message) for column, message in errors]
+        plan.append((number, fields, existing))
+    if result.errors:
+        return result
+    return _write(job, plan, result)
+
+
+def _unsafe(text: str) -> str:
+    return text[1:] if text.startswith("'") and text[1:].startswith(_FORMULA_START) else text
+
+
+class _Rollback(Exception):
+    pass
+
+
+def _write(job, plan: list[tuple[int, dict, Circuit | None]], result: ImportResult):
+    try:
+        with transaction.atomic():
+            for number, fields, existing in plan:
+                try:
+                    if existing is None:
+                        result.created.append(circuit_create(job=job, **fields).tag)
+                    else:
+                        circuit = Circuit.objects.get(pk=existing.pk)
+                        result.updated.append(circuit_update(circuit=circuit, **fields).tag)
+                except ValidationError as exc:
+                    result.errors += [
+                        RowError(number, _FIELD_COLUMN.get(name, name), message)
+                        for name, messages in exc.message_dict.items()
+                        for message in messages
+                    ]
+                    raise _Rollback from exc
+    except _Rollback:
+        result.created, result.updated = [], []
+    return result

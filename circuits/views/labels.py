@@ -1,0 +1,70 @@
+"""A printable sheet of wire-marker labels: one per circuit end, each with a QR code that
+opens the circuit's page."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import segno
+from django.contrib.auth.decorators import login_required
+from django.http import Http404, HttpRequest, HttpResponse
+from django.shortcuts import get_object_or_404, render
+from django.urls import path
+from django.utils.safestring import SafeString, mark_safe
+from django.views.decorators.http import require_GET
+
+from circuits.diagram import size_text
+from circuits.models import Circuit
+from circuits.views.access import _get_job_for_user
+
+
+@dataclass(frozen=True)
+class WireLabel:
+    circuit: Circuit
+    end: str  # "from" or "to"
+    device_name: str
+    size: str
+    url: str
+    qr: SafeString
+
+    @property
+    def end_text(self) -> str:
+        return f"{self.end} {self.device_name}"
+
+
+def qr_svg(url: str) -> SafeString:
+    """A QR code for the URL as inline SVG: sized by CSS, medium error correction (a
+    scuffed label still reads), a full-size code rather than a micro one (phones read it)."""
+    code = segno.make_qr(url, error="m")
+    svg = code.svg_inline(scale=1, border=2, omitsize=True, svgclass="qr", lineclass="qr-dark")
+    return mark_safe(svg)  # segno escapes the data it writes
+
+
+def wire_labels(circuits, absolute_url) -> list[WireLabel]:
+    """Two labels per circuit, its from end then its to end."""
+    labels = []
+    for circuit in circuits:
+        url = absolute_url(circuit.get_absolute_url())
+        qr = qr_svg(url)
+        for end, device in (("from", circuit.from_device), ("to", circuit.to_device)):
+            labels.append(WireLabel(circuit, end, device.name, size_text(circuit), url, qr))
+    return labels
+
+
+@login_required
+@require_GET
+def circuit_labels(request: HttpRequest, number: str) -> HttpResponse:
+    job = _get_job_for_user(request.user, number, perm="circuits.view_circuit")
+    circuits = job.circuits.for_schedule()
+    one = request.GET.get("circuit", "")
+    if one:  # reprint the two labels of one circuit
+        if not one.isdigit():
+            raise Http404("No such circuit.")
+        circuits = [get_object_or_404(circuits, pk=one)]
+    labels = wire_labels(circuits, request.build_absolute_uri)
+    return render(request, "circuits/labels.html", {"job": job, "labels": labels, "one": one})
+
+
+urlpatterns = [
+    path("jobs/<str:number>/labels/", circuit_labels, name="circuit_labels"),
+]

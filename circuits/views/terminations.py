@@ -1,0 +1,59 @@
+"""Edit one termination: its kind, stud size and torque spec (value, unit, tolerance and
+where the value comes from). A blank torque takes the device manual's value, else the
+shop default for the stud size and kind."""
+
+from __future__ import annotations
+
+from django.contrib import messages
+from django.contrib.auth.decorators import login_required
+from django.http import HttpRequest, HttpResponse
+from django.shortcuts import get_object_or_404, redirect, render
+from django.urls import path
+from django.utils.http import url_has_allowed_host_and_scheme
+from django.views.decorators.http import require_http_methods
+
+from circuits.forms import TerminationForm
+from circuits.models import Termination
+from circuits.services import termination_spec_fill
+from circuits.views.access import _get_job_for_user
+
+
+def _back_url(request: HttpRequest, termination: Termination) -> str:
+    wanted = request.POST.get("next") or request.GET.get("next") or ""
+    if wanted and url_has_allowed_host_and_scheme(
+        wanted, allowed_hosts={request.get_host()}, require_https=request.is_secure()
+    ):
+        return wanted
+    return termination.circuit.get_absolute_url()
+
+
+@login_required
+@require_http_methods(["GET", "POST"])
+def termination_edit(request: HttpRequest, number: str, pk: int) -> HttpResponse:
+    job = _get_job_for_user(request.user, number, perm="circuits.change_termination")
+    termination = get_object_or_404(
+        Termination.objects.select_related(
+            "circuit__job", "circuit__from_device", "circuit__to_device", "terminal__device"
+        ),
+        circuit__job=job,
+        pk=pk,
+    )
+    back = _back_url(request, termination)
+    form = TerminationForm(request.POST or None, instance=termination)
+    if request.method == "POST" and form.is_valid():
+        termination = form.save(commit=False)
+        if form.refill:
+            termination.torque_source = Termination.SpecSource.NONE
+            termination.torque_source_note = ""
+            termination_spec_fill(termination)
+        termination.full_clean()
+        termination.save()
+        messages.success(request, f"Termination {termination} saved.")
+        return redirect(back)
+    context = {"job": job, "termination": termination, "form": form, "back": back}
+    return render(request, "circuits/termination_form.html", context)
+
+
+urlpatterns = [
+    path("jobs/<str:number>/terminations/<int:pk>/", termination_edit, name="termination_edit"),
+]
