@@ -5,6 +5,7 @@ Stable API (other test modules import it):
     make_device(job, **fields) -> Device
     make_terminal(device, **fields) -> Terminal
     make_circuit(job, from_device, to_device, **fields) -> Circuit   (via circuit_create)
+    make_battery_bank(job, **options) -> (link, feed)   two paralleled batteries
     findings_for(job, code=None) -> list[SystemFinding]    rule_codes(job) -> set[str]
 
 Defaults describe a plain, finding-free 12 V DC branch: 10 A over 2 m of fine-stranded,
@@ -75,6 +76,50 @@ def make_circuit(job, from_device: Device, to_device: Device, **fields) -> Circu
         if name in fields:
             fields[name] = _decimal(fields[name])
     return circuit_create(job=job, from_device=from_device, to_device=to_device, **fields)
+
+
+def make_battery_bank(
+    job,
+    *,
+    interconnect: str = "4/0 AWG",
+    feed: str = "4/0 AWG",
+    parallel: int = 1,
+    engine_space: bool = False,
+    main_fuse: float = 300,
+    feed_current: float = 250,
+) -> tuple[Circuit, Circuit]:
+    """Two paralleled batteries ("Battery 1", "Battery 2"), an unfused interconnect C-01
+    between them and a main feed C-02 from the second battery to a "Busbar", fused
+    0.1 m from the battery."""
+    b1 = make_device(job, name="Battery 1", kind=Device.Kind.BATTERY, mounting="battery_box")
+    b2 = make_device(job, name="Battery 2", kind=Device.Kind.BATTERY, mounting="battery_box")
+    bus = make_device(job, name="Busbar", kind=Device.Kind.BUSBAR, mounting="battery_box")
+    link = make_circuit(
+        job,
+        b1,
+        b2,
+        tag="C-01",
+        role="interconnect",
+        conductor_size=interconnect,
+        parallel=parallel,
+        engine_space=engine_space,
+        design_current_a=150,
+        length_m=0.3,
+        protection_type="none",
+    )
+    main = make_circuit(
+        job,
+        b2,
+        bus,
+        tag="C-02",
+        role="main_feed",
+        conductor_size=feed,
+        design_current_a=feed_current,
+        length_m=1.0,
+        protection_a=main_fuse,
+        protection_distance_m=0.1,
+    )
+    return link, main
 
 
 def findings_for(job, code: str | None = None) -> list:

@@ -11,7 +11,13 @@ from __future__ import annotations
 import pytest
 
 from circuits.models import Device
-from tests.circuits.factories import findings_for, make_circuit, make_device, rule_codes
+from tests.circuits.factories import (
+    findings_for,
+    make_battery_bank,
+    make_circuit,
+    make_device,
+    rule_codes,
+)
 from tests.factories import make_job
 
 pytestmark = pytest.mark.django_db
@@ -22,38 +28,10 @@ def job():
     return make_job()
 
 
-def _bank(job, *, interconnect="4/0 AWG", parallel=1, engine_space=False, main_fuse=300):
+def _bank(job, **options):
     """Two paralleled batteries, an interconnect between them, a fused 4/0 main feed from
     the second battery to a busbar."""
-    b1 = make_device(job, name="Battery 1", kind=Device.Kind.BATTERY, mounting="battery_box")
-    b2 = make_device(job, name="Battery 2", kind=Device.Kind.BATTERY, mounting="battery_box")
-    bus = make_device(job, name="Busbar", kind=Device.Kind.BUSBAR, mounting="battery_box")
-    link = make_circuit(
-        job,
-        b1,
-        b2,
-        tag="C-01",
-        role="interconnect",
-        conductor_size=interconnect,
-        parallel=parallel,
-        engine_space=engine_space,
-        design_current_a=150,
-        length_m=0.3,
-        protection_type="none",
-    )
-    feed = make_circuit(
-        job,
-        b2,
-        bus,
-        tag="C-02",
-        role="main_feed",
-        conductor_size="4/0 AWG",
-        design_current_a=250,
-        length_m=1.0,
-        protection_a=main_fuse,
-        protection_distance_m=0.1,
-    )
-    return link, feed
+    return make_battery_bank(job, **options)
 
 
 def test_thin_interconnect_between_paralleled_batteries_is_blocking(job):

@@ -5,7 +5,13 @@ from __future__ import annotations
 
 import pytest
 
-from tests.circuits.factories import findings_for, make_circuit, make_device, rule_codes
+from tests.circuits.factories import (
+    findings_for,
+    make_battery_bank,
+    make_circuit,
+    make_device,
+    rule_codes,
+)
 from tests.factories import make_job
 
 pytestmark = pytest.mark.django_db
@@ -17,32 +23,7 @@ def job():
 
 
 def _bank(job, link_size, feed_size):
-    b1 = make_device(job, name="Battery 1", kind="battery")
-    b2 = make_device(job, name="Battery 2", kind="battery")
-    bus = make_device(job, name="Busbar", kind="busbar")
-    make_circuit(
-        job,
-        b1,
-        b2,
-        tag="C-01",
-        role="interconnect",
-        conductor_size=link_size,
-        design_current_a=150,
-        length_m=0.3,
-        protection_type="none",
-    )
-    make_circuit(
-        job,
-        b2,
-        bus,
-        tag="C-02",
-        role="main_feed",
-        conductor_size=feed_size,
-        design_current_a=150,
-        length_m=1.0,
-        protection_a=300,
-        protection_distance_m=0.1,
-    )
+    make_battery_bank(job, interconnect=link_size, feed=feed_size, feed_current=150)
 
 
 def test_bare_4_beside_4_0_in_the_same_battery_path_is_blocking(job):

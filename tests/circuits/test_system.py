@@ -13,7 +13,7 @@ from django.test.utils import CaptureQueriesContext
 from circuits.models import Circuit, Waiver
 from circuits.rules import RULES
 from circuits.system import job_system_report, system_report_from
-from tests.circuits.factories import make_circuit, make_device
+from tests.circuits.factories import make_battery_bank, make_circuit, make_device
 from tests.factories import make_job, make_vehicle
 
 pytestmark = pytest.mark.django_db
@@ -30,35 +30,11 @@ def job():
 def system(job):
     """Two batteries with a thin 2 AWG interconnect, a fused 4/0 main feed, a 12 AWG branch,
     and black as DC negative and AC line in one panel."""
-    b1 = make_device(job, name="Battery 1", kind="battery")
-    b2 = make_device(job, name="Battery 2", kind="battery")
-    bus = make_device(job, name="Busbar", kind="busbar")
+    make_battery_bank(job, interconnect="2 AWG")
+    bus = job.devices.get(name="Busbar")
     panel = make_device(job, name="Panel", kind="dc_panel", enclosure="Cabinet")
     ac = make_device(job, name="AC breakers", kind="ac_panel", enclosure="Cabinet")
     outlet = make_device(job, name="Outlet")
-    make_circuit(
-        job,
-        b1,
-        b2,
-        tag="C-01",
-        role="interconnect",
-        conductor_size="2 AWG",
-        design_current_a=150,
-        length_m=0.3,
-        protection_type="none",
-    )
-    make_circuit(
-        job,
-        b2,
-        bus,
-        tag="C-02",
-        role="main_feed",
-        conductor_size="4/0 AWG",
-        design_current_a=250,
-        length_m=1.0,
-        protection_a=300,
-        protection_distance_m=0.1,
-    )
     make_circuit(job, bus, panel, tag="D-01", colour_b="black")
     make_circuit(
         job,
