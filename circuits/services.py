@@ -134,11 +134,16 @@ def circuit_create(*, job, **fields) -> Circuit:
 
 def circuit_update(*, circuit: Circuit, **fields) -> Circuit:
     with transaction.atomic():
+        # Read the stored tag: a bound model form has already put the new one on the instance.
+        old_tag = Circuit.objects.filter(pk=circuit.pk).values_list("tag", flat=True).get()
         for name, value in fields.items():
             setattr(circuit, name, value)
         circuit.full_clean()
         circuit.save()
         terminations_sync(circuit=circuit)
+        if circuit.tag != old_tag:
+            # Waivers name their finding's subject by tag; they follow the circuit.
+            Waiver.objects.filter(job=circuit.job_id, subject=old_tag).update(subject=circuit.tag)
     return circuit
 
 

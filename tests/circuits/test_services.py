@@ -12,6 +12,7 @@ from django.core.exceptions import PermissionDenied, ValidationError
 
 from circuits.models import Termination, TorqueDefault, Waiver
 from circuits.services import circuit_update, waiver_create
+from circuits.system import job_system_report
 from shop import roles
 from tests.circuits.factories import make_circuit, make_device, make_terminal
 from tests.factories import make_job, make_user
@@ -205,3 +206,19 @@ def test_a_finding_is_waived_once(job, solid_circuit, lead):
             job=job, code="CONSTRUCTION_SOLID", subject="D-01", reason=REASON, lead=other_lead
         )
     assert Waiver.objects.count() == 1
+
+
+def test_a_waiver_follows_its_circuit_when_the_tag_is_renamed(job, solid_circuit, lead):
+    waiver_create(job=job, code="CONSTRUCTION_SOLID", subject="D-01", reason=REASON, lead=lead)
+    circuit_update(circuit=solid_circuit, tag="D-11")
+    [found] = [f for f in job_system_report(job).all_findings if f.code == "CONSTRUCTION_SOLID"]
+    assert found.subject == "D-11"
+    assert found.waived and found.waiver.reason == REASON
+
+
+def test_renaming_through_a_bound_form_still_moves_the_waiver(job, solid_circuit, lead):
+    """A model form puts the new tag on the instance before the service runs."""
+    waiver_create(job=job, code="CONSTRUCTION_SOLID", subject="D-01", reason=REASON, lead=lead)
+    solid_circuit.tag = "D-12"
+    circuit_update(circuit=solid_circuit)
+    assert Waiver.objects.get().subject == "D-12"
