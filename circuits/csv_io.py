@@ -30,12 +30,11 @@ from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
 from django.db import transaction
 
 from circuits.forms import parse_length_entry
-from circuits.models import Circuit, Colour, Device
+from circuits.models import FOOT_M, Circuit, Colour, Device
 from circuits.services import circuit_create, circuit_update
 from circuits.sizing import UnitError, parse_length
 
 MAX_ROWS = 2000
-FOOT = 0.3048  # metres, exact by definition
 
 _BOOLEANS = [
     "continuous", "critical", "tinned", "engine_space", "splice", "tape_remarked",
@@ -143,7 +142,7 @@ def _safe(text: str) -> str:
 
 def _length(circuit: Circuit) -> str:
     if circuit.length_unit == Circuit.LengthUnit.FT:
-        return f"{_number(circuit.length_m / FOOT)} ft"
+        return f"{_number(circuit.length_m / FOOT_M)} ft"
     return f"{_number(circuit.length_m)} m"
 
 

@@ -27,10 +27,8 @@ from decimal import Decimal
 
 from django.core.exceptions import ValidationError
 
-from circuits.models import Circuit, Device, Terminal, TorqueDefault, Waiver
+from circuits.models import FOOT_M, Circuit, Device, Terminal, TorqueDefault, Waiver
 from circuits.services import circuit_create, termination_spec_fill, waiver_create
-
-FT = 0.3048  # metres per foot, exact
 
 # Shop default torques for crimped lugs on studs (lbf·in). The values are the telecom
 # power-plant minimums for wire connectors on 1/4, 5/16 and 3/8 in hardware (standards
@@ -125,7 +123,7 @@ def _circuit_spec(line: str) -> CircuitSpec:
     tag, name, role, ends, size, amps, length, options = (p.strip() for p in line.split("|"))
     frm, to = (p.strip() for p in ends.split(">"))
     value, unit = length.split()
-    metres = float(value) * FT if unit == "ft" else float(value)
+    metres = float(value) * FOOT_M if unit == "ft" else float(value)
     spec = CircuitSpec(tag, name, role, frm, to, size, Decimal(amps), metres, unit)
     if "note=" in options:  # the note is last and may hold any punctuation
         options, note = options.split("note=", 1)

@@ -95,9 +95,9 @@ class SystemReport:
         return [f for f in self.all_findings if f.open_blocking]
 
 
-def circuit_input(circuit: Circuit, *, size_override: str | None = None) -> CircuitInput:
+def circuit_input(circuit: Circuit) -> CircuitInput:
     """The sizing engine's input for a circuit. Raises SizingError/SizeNotationError."""
-    size_text = size_override if size_override is not None else circuit.conductor_size
+    size_text = circuit.conductor_size
     size = parse_size(size_text) if size_text else None
     return CircuitInput(
         system_voltage_v=float(circuit.nominal_voltage),
@@ -171,8 +171,12 @@ def system_report_from(
     return SystemReport(devices=devices, circuits=sizings, system_findings=system_only)
 
 
-def job_system_report(job) -> SystemReport:
+def job_system_report(job, *, draft: Circuit | None = None) -> SystemReport:
+    """The job's system as stored; with `draft`, an unsaved circuit takes the place of its
+    stored self (or joins, when new), for a live preview."""
     devices = list(job.devices.prefetch_related("terminals"))
     circuits = list(job.circuits.for_schedule())
+    if draft is not None:
+        circuits = [c for c in circuits if c.pk != draft.pk] + [draft]
     waivers = list(job.waivers.select_related("lead"))
     return system_report_from(devices, circuits, job.vehicle, waivers)

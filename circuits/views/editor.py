@@ -27,7 +27,6 @@ from circuits.system import (
     SystemFinding,
     job_system_report,
     size_one,
-    system_report_from,
 )
 from circuits.views.access import _get_circuit_for_user, _get_job_for_user, require_perm
 
@@ -108,10 +107,7 @@ def panel_for_form(form: CircuitForm, job) -> Panel:
         return Panel(state="blank")
     if not form.errors:
         draft = form.instance
-        circuits = [c for c in job.circuits.for_schedule() if c.pk != draft.pk] + [draft]
-        devices = list(job.devices.prefetch_related("terminals"))
-        waivers = list(job.waivers.select_related("lead"))
-        system = system_report_from(devices, circuits, job.vehicle, waivers)
+        system = job_system_report(job, draft=draft)
         return _panel_from(system.by_tag()[draft.tag], whole_system=True)
     draft = form.sizing_draft()
     if draft is None:
