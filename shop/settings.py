@@ -175,9 +175,33 @@ if not DEBUG:
         SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https")
     SILENCED_SYSTEM_CHECKS = [] if SECURE_HSTS_PRELOAD else ["security.W021"]
 
+# Password-set links for new staff go by e-mail; the console backend prints them (a shop
+# with a mail server sets EMAIL_BACKEND=django.core.mail.backends.smtp.EmailBackend and
+# Django's EMAIL_HOST/EMAIL_PORT/... variables).
+EMAIL_BACKEND = os.environ.get("EMAIL_BACKEND", "django.core.mail.backends.console.EmailBackend")
+EMAIL_HOST = os.environ.get("EMAIL_HOST", "localhost")
+EMAIL_PORT = int(os.environ.get("EMAIL_PORT", "25"))
+DEFAULT_FROM_EMAIL = os.environ.get("DEFAULT_FROM_EMAIL", "ampwright@localhost")
+
 LOGGING = {
     "version": 1,
     "disable_existing_loggers": False,
-    "handlers": {"console": {"class": "logging.StreamHandler"}},
+    "formatters": {"security": {"format": "%(asctime)s security %(message)s"}},
+    "handlers": {
+        "console": {"class": "logging.StreamHandler"},
+        "security_stdout": {
+            "class": "logging.StreamHandler",
+            "stream": "ext://sys.stdout",
+            "formatter": "security",
+        },
+    },
     "root": {"handlers": ["console"], "level": os.environ.get("LOG_LEVEL", "WARNING")},
+    # Sign-in failures, lock-outs, refusals, imports and deletions (shop.security).
+    "loggers": {
+        "security": {
+            "handlers": ["security_stdout"],
+            "level": os.environ.get("SECURITY_LOG_LEVEL", "INFO"),
+            "propagate": False,
+        }
+    },
 }
