@@ -7,6 +7,9 @@ One column set both ways (`COLUMNS`, documented in `COLUMN_HELP` and on the impo
 - Yes/no columns are `yes` or `no` (`true`/`false`, `y`/`n`, `1`/`0` also read).
 - `length` is the one-way length with its unit, `3.5 m` or `12 ft`; the unit is kept as
   the circuit's display unit. `protection_distance_m` is in metres (a unit may be given).
+- Numbers are read by the same strict parser as the circuit form (circuits.sizing.
+  quantity), with the same ranges: `12 V`, `20 A`, `90 °C` and a decimal comma are read;
+  NaN, infinities, exponents beyond e±6 and values outside the field's range are errors.
 - Devices and terminals are named as recorded on the job; they must exist already.
 - Row numbers count the header as row 1, as a spreadsheet shows them.
 - An import creates circuits with new tags and updates those whose tag exists; a column
@@ -22,17 +25,17 @@ from __future__ import annotations
 
 import csv
 import io
-import math
 from dataclasses import dataclass, field
-from decimal import Decimal, InvalidOperation
+from decimal import Decimal
 
 from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
 from django.db import transaction
 
-from circuits.forms import parse_length_entry
+from circuits.entry import parse_length_entry
 from circuits.models import FOOT_M, Circuit, Colour, Device
 from circuits.services import circuit_create, circuit_update
-from circuits.sizing import UnitError, parse_length
+from circuits.sizing import UnitError, parse_quantity
+from circuits.sizing.quantity import check_limit
 
 MAX_ROWS = 2000
 
@@ -91,6 +94,13 @@ REQUIRED = [
 ]  # fmt: skip
 _TEXT = ["tag", "name", "from_device", "from_terminal", "to_device", "to_terminal"]
 _FORMULA_START = ("=", "+", "-", "@")
+# Free-text columns and the most characters their model field holds (choice columns are
+# matched against their values and labels instead).
+_LIMITED = {
+    f.name: f.max_length
+    for f in Circuit._meta.get_fields()
+    if getattr(f, "max_length", None) and f.name in COLUMNS and not f.choices
+}
 # Model field -> the CSV column its errors belong to.
 _FIELD_COLUMN = {"length_m": "length", "length_unit": "length", NON_FIELD_ERRORS: None}
 
@@ -193,12 +203,17 @@ def read_upload(data: bytes) -> str:
         ) from exc
 
 
+def _shown(text: str) -> str:
+    """A cell as quoted in a message: a long cell is cut, so errors stay readable."""
+    return repr(text) if len(text) <= 40 else repr(text[:40]) + "…"
+
+
 def _choice(column: str, text: str) -> str:
     choices = _CHOICES[column]
     for value, label in choices.choices:
         if text.lower() in (value.lower(), label.lower()):
             return value
-    raise ValueError(f"{text!r} is not one of: {', '.join(choices.values)}")
+    raise ValueError(f"{_shown(text)} is not one of: {', '.join(choices.values)}")
 
 
 def _boolean(text: str) -> bool:
@@ -207,35 +222,36 @@ def _boolean(text: str) -> bool:
         return True
     if key in ("no", "n", "false", "0"):
         return False
-    raise ValueError(f"{text!r} is not yes or no")
+    raise ValueError(f"{_shown(text)} is not yes or no")
 
 
-def _decimal(text: str, unit: str) -> Decimal:
-    cleaned = text.strip()
-    if unit and cleaned.lower().endswith(unit.lower()):  # "12 V", "20 A" read as numbers
-        cleaned = cleaned[: -len(unit)].strip()
+# Numeric column -> (kind, LIMITS field, how a message names it).
+_NUMBERS = {
+    "nominal_voltage": ("voltage", "voltage", "nominal voltage"),
+    "design_current_a": ("current", "current", "design current"),
+    "protection_a": ("current", "protection", "protection rating"),
+    "parallel": ("number", "parallel", None),
+    "bundled": ("number", "bundled", None),
+    "insulation_c": ("temperature", "insulation", None),
+}
+
+
+def _numeric_cell(column: str, text: str) -> Decimal | int:
+    """A numeric cell read by the strict parser: a Decimal in the SI unit, or an int for
+    a whole-number field."""
+    kind, limit, what = _NUMBERS[column]
     try:
-        value = Decimal(cleaned)
-    except InvalidOperation:
-        raise ValueError(f"{text!r} is not a number") from None
-    if not value.is_finite():
-        raise ValueError(f"{text!r} is not a number")
-    return value
-
-
-def _integer(text: str, unit: str = "") -> int:
-    value = _decimal(text.replace("°", ""), unit)
-    if value != value.to_integral_value():
-        raise ValueError(f"{text!r} is not a whole number")
-    return int(value)
+        parsed = parse_quantity(text, kind=kind, field=limit, what=what)
+    except UnitError as exc:
+        raise ValueError(str(exc)) from None
+    return int(parsed.value) if kind in ("number", "temperature") else parsed.decimal
 
 
 def _length_cell(text: str) -> dict[str, object]:
-    # The same reading as the circuit editor, so "120 in" shows back in feet both ways.
-    if not any(ch.isalpha() or ch in "'\"" for ch in text):
-        raise ValueError(f"{text!r} has no unit; write the length with it, e.g. 3.5 m or 12 ft")
+    # The same reading as the circuit editor, so "120 in" shows back in feet both ways;
+    # a unit must be written (a bare number is refused).
     try:
-        metres, unit = parse_length_entry(text, Circuit.LengthUnit.M)
+        metres, unit = parse_length_entry(text, None, what="length")
     except ValidationError as exc:
         raise ValueError(" ".join(exc.messages)) from None
     return {"length_m": metres, "length_unit": unit}
@@ -243,15 +259,32 @@ def _length_cell(text: str) -> dict[str, object]:
 
 def _distance(text: str) -> float:
     try:
-        value = float(text)
-    except ValueError:
-        try:
-            return parse_length(text)
-        except UnitError as exc:
-            raise ValueError(str(exc)) from None
-    if not math.isfinite(value) or value < 0:
-        raise ValueError(f"{text!r} is not a distance of 0 m or more")
-    return value
+        metres, _ = parse_length_entry(text, "m", allow_zero=True, what="protection distance")
+    except ValidationError as exc:
+        raise ValueError(" ".join(exc.messages)) from None
+    return metres
+
+
+def _voltage_for_role(fields: dict) -> str | None:
+    """The role's own voltage range (LIMITS["dc_voltage"] or ["ac_voltage"])."""
+    volts = fields.get("nominal_voltage")
+    if not isinstance(volts, Decimal):
+        return None
+    ac = fields.get("role") in (Circuit.Role.SHORE_SUPPLY, Circuit.Role.AC_BRANCH)
+    try:
+        check_limit(float(volts), field="ac_voltage" if ac else "dc_voltage", shown=f"{volts} V")
+    except UnitError as exc:
+        return str(exc)
+    return None
+
+
+def _too_long(column: str, text: str) -> str | None:
+    """A text cell longer than its model field holds (checked before any other work, so
+    a huge cell is never parsed)."""
+    if column not in _LIMITED:
+        return None
+    most = _LIMITED[column]
+    return f"{len(text)} characters; at most {most}" if len(text) > most else None
 
 
 class _Devices:
@@ -267,14 +300,14 @@ class _Devices:
         if device is None and len(matches) == 1:
             device = matches[0]
         if device is None:
-            raise ValueError(f"no device named {name!r} on this job; add it first")
+            raise ValueError(f"no device named {_shown(name)} on this job; add it first")
         return device
 
     def terminal(self, device: Device, name: str):
         for terminal in device.terminals.all():
             if terminal.name == name:
                 return terminal
-        raise ValueError(f"{device.name} has no terminal named {name!r}")
+        raise ValueError(f"{device.name} has no terminal named {_shown(name)}")
 
 
 def _convert(cells: dict[str, str], devices: _Devices) -> tuple[dict, list[tuple[str, str]]]:
@@ -283,6 +316,8 @@ def _convert(cells: dict[str, str], devices: _Devices) -> tuple[dict, list[tuple
     errors: list[tuple[str, str]] = []
     for column, text in cells.items():
         try:
+            if too_long := _too_long(column, text):
+                raise ValueError(too_long)
             if not text:
                 if column in REQUIRED:
                     raise ValueError("required")
@@ -300,20 +335,16 @@ def _convert(cells: dict[str, str], devices: _Devices) -> tuple[dict, list[tuple
                 fields[column] = _choice(column, text)
             elif column == "length":
                 fields.update(_length_cell(text))
-            elif column == "nominal_voltage":
-                fields[column] = _decimal(text, "V")
-            elif column in ("design_current_a", "protection_a"):
-                fields[column] = _decimal(text, "A")
-            elif column in ("parallel", "bundled"):
-                fields[column] = _integer(text)
-            elif column == "insulation_c":
-                fields[column] = _integer(text, "C")
+            elif column in _NUMBERS:
+                fields[column] = _numeric_cell(column, text)
             elif column == "protection_distance_m":
                 fields[column] = _distance(text)
             else:
                 fields[column] = text
         except ValueError as exc:
             errors.append((column, str(exc)))
+    if "nominal_voltage" not in dict(errors) and (message := _voltage_for_role(fields)):
+        errors.append(("nominal_voltage", message))
     return fields, errors
 
 

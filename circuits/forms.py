@@ -1,21 +1,22 @@
 """Forms of the electrical-system pages: circuits, devices and their terminals,
 terminations, the shop's default torque specs, and waivers.
 
-Lengths are typed with their unit ("10 ft", "3 m", "120 in"); unit errors become
-ValidationErrors beside the field, never a 500. Model rules (Circuit.clean, the unique
-constraints) still run through the ModelForm's validation.
+Lengths are typed with their unit ("10 ft", "3 m", "120 in") and every number is read by
+the one strict parser (circuits.sizing.quantity, through circuits.entry) with the ranges
+of its LIMITS table; a bad entry is a ValidationError beside the field, never a 500.
+Record choices read their ids strictly (shop.fields). Model rules (Circuit.clean, the
+unique constraints) still run through the ModelForm's validation.
 """
 
 from __future__ import annotations
 
-import re
 from decimal import Decimal
 
 from django import forms
 from django.core.exceptions import ValidationError
 
+from circuits.entry import check_entry, number_entry, parse_length_entry, strict_field
 from circuits.models import (
-    FOOT_M,
     Circuit,
     Device,
     Terminal,
@@ -24,44 +25,27 @@ from circuits.models import (
     format_length,
 )
 from circuits.services import MIN_WAIVER_REASON
-from circuits.sizing import SizeNotationError, UnitError, parse_length, parse_size
-from circuits.sizing.units import ureg
+from circuits.sizing import SizeNotationError, parse_size
+from shop.fields import IdChoiceField, parse_id
 
-MAX_LENGTH_M = 500.0
-MIN_LENGTH_M = 0.01
-# Units that make us show a length back in feet; every other length unit shows in metres.
-_IMPERIAL_UNITS = {"foot", "inch", "yard", "mile"}
-_NUMBER_THEN_REST = re.compile(r"^\s*([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+))\s*(.*?)\s*$")
 # Nominal AC voltage of each vehicle AC system, for AC circuits left blank.
 AC_VOLTS = {"120_60": Decimal("120"), "230_50": Decimal("230")}
+_AC_ROLES = (Circuit.Role.SHORE_SUPPLY, Circuit.Role.AC_BRANCH)
 
 
-def parse_length_entry(text: str, default_unit: str, *, allow_zero: bool = False):
-    """Read a typed length: "10 ft", "3 m", "120 in", or a bare number in `default_unit`.
-
-    Returns (metres, unit to show it back in: "m" or "ft"). Raises ValidationError with
-    a message fit to show beside the field.
-    """
-    match = _NUMBER_THEN_REST.match(text or "")
-    if match is None:
-        raise ValidationError(
-            f"Cannot read the length {text!r}; write a number and a unit, e.g. 10 ft or 3 m."
-        )
-    number, unit_text = match.group(1).replace(",", "."), match.group(2)
-    if allow_zero and float(number) == 0:
-        return 0.0, default_unit
+def _check_torque(form: forms.ModelForm, value_name: str, unit_name: str) -> None:
+    """A torque typed as a bare number in the unit chosen beside it, within
+    LIMITS["torque"] once converted to N·m."""
+    value, unit = form.cleaned_data.get(value_name), form.cleaned_data.get(unit_name)
+    if value is None or not unit:
+        return
     try:
-        if not unit_text:
-            return parse_length(float(number), default_unit), default_unit
-        metres = parse_length(f"{number} {unit_text}")
-        shown = "ft" if str(ureg.parse_units(unit_text)) in _IMPERIAL_UNITS else "m"
-    except UnitError as exc:
-        message = str(exc)
-        raise ValidationError(message[:1].upper() + message[1:] + ".") from exc
-    return metres, shown
+        number_entry(value, unit, kind="torque", field="torque")
+    except ValidationError as exc:
+        form.add_error(value_name, exc)
 
 
-class _TerminalChoiceField(forms.ModelChoiceField):
+class _TerminalChoiceField(IdChoiceField):
     """Terminal choices: 'B+ (DC positive)', prefixed with the device when the list
     spans several devices."""
 
@@ -143,6 +127,7 @@ class CircuitForm(forms.ModelForm):
             "protection_a": forms.NumberInput(attrs={"step": "any", "inputmode": "decimal"}),
             "conductor_size": forms.TextInput(attrs={"autocomplete": "off"}),
         }
+        field_classes = {"from_device": IdChoiceField, "to_device": IdChoiceField}
 
     def __init__(self, *args, job, for_save: bool = True, **kwargs):
         super().__init__(*args, **kwargs)
@@ -158,6 +143,16 @@ class CircuitForm(forms.ModelForm):
         # needs one (checked in clean() when the form is for saving).
         self.fields["conductor_size"].required = False
         self.fields["nominal_voltage"].required = False
+        # Every number through the strict parser, with its field's range (LIMITS).
+        strict_field(
+            self, "design_current_a", kind="current", field="current", what="design current"
+        )
+        strict_field(
+            self, "nominal_voltage", kind="voltage", field="voltage", what="nominal voltage"
+        )
+        strict_field(self, "protection_a", kind="current", field="protection")
+        strict_field(self, "parallel", kind="number", field="parallel")
+        strict_field(self, "bundled", kind="number", field="bundled")
         volts = self.default_voltage(Circuit.Role.DC_BRANCH)
         ac = AC_VOLTS.get(job.vehicle.ac_system)
         hint = f"Blank: {volts:g} V for DC" + (f", {ac:g} V for AC." if ac else ".")
@@ -194,13 +189,15 @@ class CircuitForm(forms.ModelForm):
             value = self.data.get(self.add_prefix(name))
         else:
             value = getattr(self.instance, f"{name}_id", None) or self.initial.get(name)
-        return str(value) if value and str(value).isdigit() else None
+        # ASCII digits within 64 bits only: "²" or 10**308 is no device, not a 500.
+        device_id = parse_id(value if isinstance(value, int) else str(value or ""))
+        return str(device_id) if device_id else None
 
     def default_voltage(self, role: str | None) -> Decimal | None:
         """Nominal voltage for a blank entry: the vehicle's DC system, or its AC system for
         AC circuits (None when the vehicle has no AC)."""
         vehicle = self.job.vehicle
-        if role in (Circuit.Role.SHORE_SUPPLY, Circuit.Role.AC_BRANCH):
+        if role in _AC_ROLES:
             return AC_VOLTS.get(vehicle.ac_system)
         return Decimal(vehicle.dc_voltage)
 
@@ -230,7 +227,9 @@ class CircuitForm(forms.ModelForm):
         if "length" in data:
             self._clean_length(data, unit)
         self._clean_protection_distance(data, unit)
-        if data.get("nominal_voltage") is None and "nominal_voltage" not in self.errors:
+        if data.get("nominal_voltage") is not None:
+            self._check_voltage(data)
+        elif "nominal_voltage" not in self.errors:
             volts = self.default_voltage(data.get("role"))
             if volts is None:
                 self.add_error(
@@ -241,18 +240,20 @@ class CircuitForm(forms.ModelForm):
                 data["nominal_voltage"] = volts
         return data
 
+    def _check_voltage(self, data: dict) -> None:
+        """The range of the circuit's kind (LIMITS["dc_voltage"] or ["ac_voltage"])."""
+        field = "ac_voltage" if data.get("role") in _AC_ROLES else "dc_voltage"
+        volts = data["nominal_voltage"]
+        try:
+            check_entry(float(volts), field=field, what="nominal voltage", shown=f"{volts} V")
+        except ValidationError as exc:
+            self.add_error("nominal_voltage", exc)
+
     def _clean_length(self, data: dict, unit: str) -> None:
         try:
-            metres, shown = parse_length_entry(data["length"], unit)
+            metres, shown = parse_length_entry(data["length"], unit, what="one-way length")
         except ValidationError as exc:
             self.add_error("length", exc)
-            return
-        if not MIN_LENGTH_M <= metres <= MAX_LENGTH_M:
-            self.add_error(
-                "length",
-                f"A one-way length must be between 1 cm and {MAX_LENGTH_M:g} m "
-                f"({MAX_LENGTH_M / FOOT_M:.0f} ft); {data['length']} is outside.",
-            )
             return
         data["length_m"], data["length_unit"] = metres, shown
         self.instance.length_m = metres
@@ -263,7 +264,9 @@ class CircuitForm(forms.ModelForm):
             data["protection_distance_m"] = None
         else:
             try:
-                data["protection_distance_m"], _ = parse_length_entry(text, unit, allow_zero=True)
+                data["protection_distance_m"], _ = parse_length_entry(
+                    text, unit, allow_zero=True, what="protection distance"
+                )
             except ValidationError as exc:
                 self.add_error("protection_distance", exc)
                 return
@@ -343,6 +346,7 @@ class DeviceForm(forms.ModelForm):
         super().__init__(*args, **kwargs)
         self.job = job
         self.instance.job = job
+        strict_field(self, "input_current_a", kind="current", field="input_current")
 
     def clean_name(self) -> str:
         name = self.cleaned_data["name"].strip()
@@ -365,6 +369,12 @@ class TerminalForm(forms.ModelForm):
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
         _as_typed(self, ("manual_torque_value",))
+        strict_field(self, "manual_torque_value", kind="number", field="torque_number")
+
+    def clean(self) -> dict:
+        data = super().clean()
+        _check_torque(self, "manual_torque_value", "manual_torque_unit")
+        return data
 
     class Meta:
         model = Terminal
@@ -389,6 +399,8 @@ class TerminationForm(forms.ModelForm):
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
         _as_typed(self, ("torque_value", "torque_tolerance_pct"))
+        strict_field(self, "torque_value", kind="number", field="torque_number")
+        strict_field(self, "torque_tolerance_pct", kind="percent", field="tolerance")
 
     class Meta:
         model = Termination
@@ -420,6 +432,7 @@ class TerminationForm(forms.ModelForm):
 
     def clean(self) -> dict:
         data = super().clean()
+        _check_torque(self, "torque_value", "torque_unit")
         value, source = data.get("torque_value"), data.get("torque_source")
         if value is not None and source == Termination.SpecSource.NONE:
             self.add_error(
@@ -437,6 +450,13 @@ class TorqueDefaultForm(forms.ModelForm):
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
         _as_typed(self, ("value", "tolerance_pct"))
+        strict_field(self, "value", kind="number", field="torque_number")
+        strict_field(self, "tolerance_pct", kind="percent", field="tolerance")
+
+    def clean(self) -> dict:
+        data = super().clean()
+        _check_torque(self, "value", "unit")
+        return data
 
     class Meta:
         model = TorqueDefault
@@ -476,5 +496,4 @@ __all__ = [
     "TorqueDefaultForm",
     "WaiverForm",
     "format_length",
-    "parse_length_entry",
 ]

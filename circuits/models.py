@@ -7,7 +7,6 @@ sizing engine and the whole-system rules on every view (circuits.system).
 
 from __future__ import annotations
 
-from django.conf import settings
 from django.core.exceptions import ValidationError
 from django.core.validators import MaxValueValidator, MinValueValidator
 from django.db import models
@@ -15,6 +14,10 @@ from django.db.models import Q
 from django.urls import reverse
 
 from circuits.sizing import SizeNotationError, parse_size
+
+# The Waiver model lives in its own module (this one is long enough); it is part of this
+# app and importable from here like the others.
+from circuits.waiver_models import Waiver  # noqa: F401
 
 FOOT_M = 0.3048  # exact by definition (NIST SP 811)
 
@@ -476,26 +479,3 @@ class Termination(models.Model):
     @property
     def device(self) -> Device:
         return self.circuit.from_device if self.end == self.End.FROM else self.circuit.to_device
-
-
-class Waiver(models.Model):
-    """A lead's written acceptance of one finding. Matched to the recomputed finding by
-    its code and subject (a circuit tag, or a system-wide key)."""
-
-    job = models.ForeignKey("shop.Job", on_delete=models.CASCADE, related_name="waivers")
-    code = models.CharField(max_length=60)
-    subject = models.CharField(max_length=120, help_text="What the finding is about.")
-    reason = models.TextField()
-    lead = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
-    created_at = models.DateTimeField(auto_now_add=True)
-
-    class Meta:
-        ordering = ["-created_at"]
-        constraints = [
-            models.UniqueConstraint(
-                fields=["job", "code", "subject"], name="waiver_unique_per_finding"
-            )
-        ]
-
-    def __str__(self) -> str:
-        return f"{self.code} on {self.subject}"

@@ -3,7 +3,9 @@
 from __future__ import annotations
 
 from django.core.exceptions import PermissionDenied, ValidationError
-from django.db import transaction
+from django.db import IntegrityError, transaction
+from django.db.models import ProtectedError
+from django.utils import timezone
 
 from circuits.models import Circuit, Termination, TorqueDefault, Waiver
 from shop.models import ShopProfile
@@ -93,7 +95,15 @@ def terminations_sync(*, circuit: Circuit) -> list[Termination]:
     }
     surplus = [t.pk for key, t in existing.items() if key not in expected]
     if surplus:
-        Termination.objects.filter(pk__in=surplus).delete()
+        try:
+            with transaction.atomic():
+                Termination.objects.filter(pk__in=surplus).delete()
+        except ProtectedError as exc:
+            kept = sorted({str(obj) for obj in exc.protected_objects})[:3]
+            raise ValidationError(
+                "This change would remove conductor ends that already carry torque readings "
+                f"({'; '.join(kept)}); keep the conductors and parallel count, or ask a lead."
+            ) from exc
     for key, termination in existing.items():
         if key in expected and _repoint(circuit, termination):
             termination.full_clean()
@@ -148,7 +158,12 @@ def circuit_update(*, circuit: Circuit, **fields) -> Circuit:
 
 
 def waiver_create(*, job, code: str, subject: str, reason: str, lead) -> Waiver:
-    """A lead accepts one current finding in writing."""
+    """A lead accepts one current finding in writing, on the facts it rests on now (they
+    are stored with the waiver: circuits.waiver_facts).
+
+    When the finding's waiver in force has lapsed (granted on facts that have changed, or
+    before waivers recorded facts), the new waiver renews it: the lapsed one is kept as
+    history, marked superseded, and the new one points back at it (`renews`)."""
     from circuits.system import job_system_report
 
     if not lead.has_perm("circuits.add_waiver"):
@@ -160,15 +175,117 @@ def waiver_create(*, job, code: str, subject: str, reason: str, lead) -> Waiver:
         )
     with transaction.atomic():
         report = job_system_report(job)
-        current = {(f.code, f.subject) for f in report.all_findings}
-        if (code, subject) not in current:
+        finding = next(
+            (f for f in report.all_findings if (f.code, f.subject) == (code, subject)), None
+        )
+        if finding is None:
             raise ValidationError("That finding is no longer raised; nothing to waive.")
-        if Waiver.objects.filter(job=job, code=code, subject=subject).exists():
+        if finding.waived:
             raise ValidationError("This finding is already waived.")
-        return Waiver.objects.create(job=job, code=code, subject=subject, reason=reason, lead=lead)
+        lapsed = finding.lapsed_waiver
+        if lapsed is not None:
+            # Only if it is still in force: two leads renewing at once renew it once.
+            closed = (
+                Waiver.objects.active().filter(pk=lapsed.pk).update(superseded_at=timezone.now())
+            )
+            if not closed:
+                raise ValidationError("This finding is already waived.")
+        try:
+            with transaction.atomic():
+                return Waiver.objects.create(
+                    job=job,
+                    code=code,
+                    subject=subject,
+                    reason=reason,
+                    lead=lead,
+                    message=finding.message,
+                    facts=finding.facts,
+                    facts_hash=finding.facts_hash,
+                    renews=lapsed,
+                )
+        except IntegrityError:
+            # Another lead's waiver landed first (one in force per finding).
+            raise ValidationError("This finding is already waived.") from None
 
 
-def waiver_withdraw(*, waiver: Waiver, user) -> None:
+def waiver_withdraw(*, waiver: Waiver, user, reason: str = "") -> Waiver:
+    """A lead takes a waiver back. The row stays, with who withdrew it, when and why; the
+    finding is open again."""
     if not user.has_perm("circuits.delete_waiver"):
         raise PermissionDenied("Only a lead can withdraw a waiver.")
-    waiver.delete()
+    with transaction.atomic():
+        withdrawn = (
+            Waiver.objects.active()
+            .filter(pk=waiver.pk)
+            .update(
+                withdrawn_at=timezone.now(),
+                withdrawn_by=user,
+                withdrawal_reason=(reason or "").strip(),
+            )
+        )
+        if not withdrawn:
+            raise ValidationError("This waiver is no longer in force; nothing to withdraw.")
+    waiver.refresh_from_db()
+    return waiver
+
+
+# ---- removals: the confirmed deletes of the circuit and device pages ----
+
+
+def circuit_delete(*, circuit: Circuit, user) -> int:
+    """Delete a circuit and its terminations (with their torque specs). Returns how many
+    terminations went with it. The view has checked the job assignment and the confirm."""
+    if not user.has_perm("circuits.delete_circuit"):
+        raise PermissionDenied("Removing a circuit is lead or office work; ask a lead.")
+    with transaction.atomic():
+        count = Termination.objects.filter(circuit=circuit).count()
+        # A waiver names its finding by tag: one left in force would pass to the next
+        # circuit given this tag. It is withdrawn, and kept, with the deletion as reason.
+        Waiver.objects.active().filter(job=circuit.job_id, subject=circuit.tag).update(
+            withdrawn_at=timezone.now(),
+            withdrawn_by=user,
+            withdrawal_reason=f"Circuit {circuit.tag} was deleted.",
+        )
+        try:
+            circuit.delete()  # its terminations go with it (CASCADE)
+        except ProtectedError as exc:
+            raise ValidationError(
+                f"Circuit {circuit.tag} carries torque readings or other evidence; it cannot "
+                "be deleted. Nothing was deleted."
+            ) from exc
+    return count
+
+
+def device_delete(*, device, user) -> None:
+    """Delete a device and its terminals, refused while any circuit uses it."""
+    from circuits.models import Device
+
+    if not user.has_perm("circuits.delete_device"):
+        raise PermissionDenied("Removing a device is lead or office work; ask a lead.")
+    with transaction.atomic():
+        # Locked, so a circuit saved at the same moment cannot land on a deleted device.
+        locked = Device.objects.select_for_update().get(pk=device.pk)
+        in_use = device_circuit_tags(locked)
+        if in_use:
+            raise ValidationError(
+                f"{locked.name} is used by circuit{'s' if len(in_use) > 1 else ''} "
+                f"{', '.join(in_use)}; nothing was deleted."
+            )
+        try:
+            locked.delete()
+        except ProtectedError as exc:
+            raise ValidationError(
+                f"{locked.name} has terminals with torque readings or other evidence; it "
+                "cannot be deleted. Nothing was deleted."
+            ) from exc
+
+
+def device_circuit_tags(device) -> list[str]:
+    """Tags of the circuits that start or end at the device."""
+    from django.db.models import Q
+
+    return list(
+        Circuit.objects.filter(Q(from_device=device) | Q(to_device=device))
+        .order_by("tag")
+        .values_list("tag", flat=True)
+    )

@@ -2,6 +2,11 @@
 whole-system rules (circuits.rules), with leads' waivers matched to the findings.
 
 Nothing here is stored: call `job_system_report(job)` whenever a page needs findings.
+
+Each finding carries the facts it rests on now (circuits.waiver_facts). A waiver in force
+for its (code, subject) covers it only when the waiver was granted on the same facts;
+otherwise the waiver has lapsed: the finding is open again (a blocking one blocks) and
+says what changed, until a lead renews the waiver (circuits.services.waiver_create).
 """
 
 from __future__ import annotations
@@ -20,6 +25,9 @@ from circuits.sizing import (
     parse_size,
     size_circuit,
 )
+from circuits.waiver_facts import NEW as NEW_CIRCUIT
+from circuits.waiver_facts import describe_changes, fact_names, finding_facts
+from circuits.waiver_facts import facts_hash as hash_of_facts
 
 SYSTEM_SUBJECT = "system"
 
@@ -27,7 +35,8 @@ SYSTEM_SUBJECT = "system"
 @dataclass
 class SystemFinding:
     """A finding placed in the system: what it is about (`subject`: a circuit tag, a device
-    name or "system"), the circuits it names, and the waiver that accepts it, if any."""
+    name or "system"), the circuits it names, the facts it rests on now, and the waiver in
+    force for it, if any (which covers it only if granted on those same facts)."""
 
     code: str
     severity: str
@@ -36,10 +45,62 @@ class SystemFinding:
     subject: str
     circuits: tuple[str, ...] = ()
     waiver: Waiver | None = None
+    facts: dict | None = None
+    facts_hash: str = ""
+    # For the change text: "circuit:<id>"/"device:<id>" -> tag or name.
+    fact_names: Mapping[str, str] = field(default_factory=dict, repr=False, compare=False)
+
+    def record_facts(self, facts: dict, names: Mapping[str, str]) -> None:
+        self.facts = facts
+        self.facts_hash = hash_of_facts(facts)
+        self.fact_names = names
 
     @property
     def waived(self) -> bool:
-        return self.waiver is not None
+        """Covered by a waiver in force that was granted on the facts as they are now."""
+        return (
+            self.waiver is not None
+            and self.facts is not None
+            and self.waiver.covers(self.facts_hash)
+        )
+
+    @property
+    def lapsed_waiver(self) -> Waiver | None:
+        """The waiver in force for this finding when it no longer covers it: granted on
+        other facts, or before waivers recorded theirs. None for a finding about a circuit
+        not saved (a preview built from a half-filled form has no id to compare by): it is
+        simply open."""
+        if (self.facts or {}).get("subject") == NEW_CIRCUIT:
+            return None
+        if self.waiver is not None and self.waiver.is_active and not self.waived:
+            return self.waiver
+        return None
+
+    @property
+    def lapse_changes(self) -> list[str]:
+        """What changed since the lapsed waiver was granted, each in plain words."""
+        lapsed = self.lapsed_waiver
+        if lapsed is None or not lapsed.has_facts:
+            return []
+        changes = describe_changes(lapsed.facts, self.facts or {}, names=self.fact_names)
+        return changes or ["the facts it was granted on have changed"]
+
+    @property
+    def lapse_note(self) -> str:
+        """'waived for an earlier version of this circuit: length 0.3 m → 0.9 m; ...'."""
+        lapsed = self.lapsed_waiver
+        if lapsed is None:
+            return ""
+        if not lapsed.has_facts:
+            return (
+                "waived before waivers recorded the facts they were granted on; renew it "
+                "to confirm it still applies"
+            )
+        if (self.facts or {}).get("subject") is not None:
+            what = "this circuit"
+        else:
+            what = "the circuits it names" if self.circuits else "the system"
+        return f"waived for an earlier version of {what}: {'; '.join(self.lapse_changes)}"
 
     @property
     def open_blocking(self) -> bool:
@@ -94,6 +155,11 @@ class SystemReport:
     def open_blocking(self) -> list[SystemFinding]:
         return [f for f in self.all_findings if f.open_blocking]
 
+    @property
+    def lapsed(self) -> list[SystemFinding]:
+        """Findings whose waiver has lapsed (open again until a lead renews it)."""
+        return [f for f in self.all_findings if f.lapsed_waiver is not None]
+
 
 def circuit_input(circuit: Circuit) -> CircuitInput:
     """The sizing engine's input for a circuit. Raises SizingError/SizeNotationError."""
@@ -127,6 +193,11 @@ def size_one(circuit: Circuit) -> CircuitSizing:
         SystemFinding.from_finding(f, subject=circuit.tag, circuits=[circuit.tag])
         for f in report.findings
     ]
+    # The engine's findings rest on this circuit alone, so their facts are complete here
+    # (the editor's sizing-only preview matches waivers to them without a whole report).
+    by_tag, names = {circuit.tag: circuit}, fact_names([circuit], [])
+    for f in sizing.findings:
+        f.record_facts(finding_facts(f, by_tag, []), names)
     return sizing
 
 
@@ -150,19 +221,26 @@ def system_report_from(
     waivers: Iterable[Waiver] = (),
 ) -> SystemReport:
     """Evaluate a system given in memory: the sizing engine on each circuit, every rule
-    across them, waivers matched by (code, subject). `job_system_report` feeds it from the
-    database; a live preview can feed it an unsaved circuit in place of the stored one."""
+    across them, each finding's facts, and the waivers in force matched by (code, subject)
+    (a waiver covers its finding only on the same facts: SystemFinding.waived).
+    `job_system_report` feeds it from the database; a live preview can feed it an unsaved
+    circuit in place of the stored one."""
     sizings = [size_one(c) for c in circuits]
     by_tag = {s.circuit.tag: s for s in sizings}
     system_findings: list[SystemFinding] = []
     for rule in _rules():
         system_findings.extend(rule(devices, circuits, vehicle, by_tag))
+    circuits_by_tag = {c.tag: c for c in circuits}
+    names = fact_names(circuits, devices)
+    for finding in system_findings:
+        finding.record_facts(finding_facts(finding, circuits_by_tag, devices, vehicle), names)
     # A rule finding about a single circuit is shown with that circuit too.
     for finding in system_findings:
         if finding.subject in by_tag:
             by_tag[finding.subject].findings.append(finding)
-    by_key = {(w.code, w.subject): w for w in waivers}
+    by_key = {(w.code, w.subject): w for w in waivers if w.is_active}
     for finding in [f for s in sizings for f in s.findings] + system_findings:
+        finding.fact_names = names
         finding.waiver = by_key.get((finding.code, finding.subject))
     for s in sizings:
         s.findings.sort(key=lambda f: f.rank)
@@ -178,5 +256,5 @@ def job_system_report(job, *, draft: Circuit | None = None) -> SystemReport:
     circuits = list(job.circuits.for_schedule())
     if draft is not None:
         circuits = [c for c in circuits if c.pk != draft.pk] + [draft]
-    waivers = list(job.waivers.select_related("lead"))
+    waivers = list(job.waivers.active().select_related("lead", "renews__lead"))
     return system_report_from(devices, circuits, job.vehicle, waivers)

@@ -1,4 +1,7 @@
-"""Forms for the shop's records; model validation (VIN, year, dates) runs through them."""
+"""Forms for the shop's records; model validation (VIN, year, dates) runs through them.
+
+Every record choice reads its id strictly (shop.fields): a tampered id such as 10**308 or
+"²" is "Select a valid choice", never a database error."""
 
 from __future__ import annotations
 
@@ -6,6 +9,7 @@ from django import forms
 from django.contrib.auth import get_user_model
 
 from shop import roles
+from shop.fields import IdChoiceField, IdMultipleChoiceField
 from shop.identifiers import normalise
 from shop.models import Job, Owner, Vehicle
 
@@ -36,6 +40,7 @@ class VehicleForm(forms.ModelForm):
             "notes",
         ]
         widgets = {"notes": forms.Textarea(attrs={"rows": 3})}
+        field_classes = {"owner": IdChoiceField}
         error_messages = {
             "dc_voltage": {
                 "invalid_choice": (
@@ -67,12 +72,12 @@ def _staff_in(role: str):
     )
 
 
-class StaffChoiceField(forms.ModelChoiceField):
+class StaffChoiceField(IdChoiceField):
     def label_from_instance(self, obj) -> str:
         return obj.get_full_name() or obj.username
 
 
-class StaffMultipleChoiceField(forms.ModelMultipleChoiceField):
+class StaffMultipleChoiceField(IdMultipleChoiceField):
     def label_from_instance(self, obj) -> str:
         return obj.get_full_name() or obj.username
 
@@ -99,6 +104,7 @@ class JobForm(forms.ModelForm):
             "booked_in_on": forms.DateInput(attrs={"type": "date"}),
             "target_handover_on": forms.DateInput(attrs={"type": "date"}),
         }
+        field_classes = {"vehicle": IdChoiceField}
 
     def __init__(self, *args, **kwargs) -> None:
         super().__init__(*args, **kwargs)

@@ -46,6 +46,16 @@ class ShopProfile(models.Model):
 
     class Meta:
         verbose_name = "shop profile"
+        # Shop-wide abilities that are no one model's add/change/delete; the role table
+        # (shop/roles.py) hands them out. They hang on the profile because it is the shop.
+        permissions = [
+            (
+                "manage_staff",
+                "Can add staff, change their role, deactivate them and send password links",
+            ),
+            ("work_on_any_job", "Can write to any job, not only the jobs they are assigned to"),
+            ("import_circuit_updates", "Can update existing circuits by CSV import"),
+        ]
 
     def __str__(self) -> str:
         return self.name

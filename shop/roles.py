@@ -1,7 +1,25 @@
 """Staff roles as Django groups, and the permissions each one holds.
 
-The data migration `0002_staff_roles` creates the groups from ROLE_PERMISSIONS; later
-issues add their own permissions in their own migrations.
+What a shop expects of each role:
+
+- Technician: reads every job; writes down what they install (devices, terminals, circuits,
+  terminations) on the jobs they are assigned to (Job.technicians, checked by
+  shop.views.access); imports new circuits by CSV into those jobs. Removes nothing.
+- Lead: runs jobs: edits owners, vehicles and jobs (and so who is assigned), writes to any
+  job's system, removes devices, terminals and circuits, updates circuits by CSV import,
+  waives findings, and keeps the shop's torque specs (engineering data).
+- Office: books work in: owners, vehicles and jobs (and deletes them), the shop profile,
+  staff accounts (`shop.manage_staff`: add, role, deactivate, password-set link; never
+  staff or superuser flags); writes to any job's system and removes from it; reads torque
+  specs. Holds no auth.* permission: staff are managed in the app, not the admin.
+
+Everyone reads the inspections records; technicians and leads add readings, the office
+keeps the torque wrenches.
+
+Migrations keep the groups in line: `shop/0002_staff_roles` and `circuits/0002_roles`
+created them, `shop/0003_role_review` set them to this table, `inspections/0003_roles`
+added the inspections part. A later permission gets its own data migration and an entry
+here; `sync_role_groups()` makes the groups match exactly.
 """
 
 from __future__ import annotations
@@ -34,30 +52,68 @@ _VIEW_SYSTEM = [
     "circuits.view_torquedefault",
     "circuits.view_waiver",
 ]
-# Technicians write down what they install; leads and office also remove it.
+# Technicians write down what they install (on their own jobs); removal is lead or
+# office work, so no delete permission is in this list.
 _EDIT_SYSTEM = [
     "circuits.add_device",
     "circuits.change_device",
     "circuits.add_terminal",
     "circuits.change_terminal",
-    "circuits.delete_terminal",
     "circuits.add_circuit",
     "circuits.change_circuit",
     "circuits.change_termination",
 ]
-_REMOVE_SYSTEM = ["circuits.delete_device", "circuits.delete_circuit"]
+_REMOVE_SYSTEM = ["circuits.delete_device", "circuits.delete_terminal", "circuits.delete_circuit"]
+# Leads and office are not limited to the jobs they are assigned to.
+_ANY_JOB = ["shop.work_on_any_job"]
+# Torque specs are engineering data: the lead keeps them, everyone else reads them.
+_TORQUE_SPECS = [
+    "circuits.add_torquedefault",
+    "circuits.change_torquedefault",
+    "circuits.delete_torquedefault",
+]
 
-# Mirrored, frozen, by the data migrations shop/0002_staff_roles and circuits/0002_roles.
+# Inspections records (mirrored by inspections/0003_roles): readings are only ever added
+# (a correction is a new reading), so no role changes or deletes them; the office keeps
+# the torque wrenches.
+_VIEW_INSPECTIONS = [
+    "inspections.view_stage",
+    "inspections.view_torquewrench",
+    "inspections.view_torquerecord",
+    "inspections.view_heatcyclerun",
+    "inspections.view_thermalreading",
+    "inspections.view_auditevent",
+]
+_RECORD_INSPECTIONS = [
+    "inspections.add_torquerecord",
+    "inspections.add_heatcyclerun",
+    "inspections.add_thermalreading",
+]
+_WRENCHES = ["inspections.add_torquewrench", "inspections.change_torquewrench"]
+
+# Mirrored, frozen, by the data migrations shop/0003_role_review (shop and circuits) and
+# inspections/0003_roles (inspections).
 ROLE_PERMISSIONS: dict[str, list[str]] = {
-    TECHNICIAN: [*_VIEW_SHOP, *_VIEW_SYSTEM, *_EDIT_SYSTEM],
+    TECHNICIAN: [
+        *_VIEW_SHOP,
+        *_VIEW_SYSTEM,
+        *_EDIT_SYSTEM,
+        *_VIEW_INSPECTIONS,
+        *_RECORD_INSPECTIONS,
+    ],
     LEAD: [
         *_VIEW_SHOP,
         *_EDIT_RECORDS,
         *_VIEW_SYSTEM,
         *_EDIT_SYSTEM,
         *_REMOVE_SYSTEM,
+        *_ANY_JOB,
+        *_TORQUE_SPECS,
+        "shop.import_circuit_updates",
         "circuits.add_waiver",
         "circuits.delete_waiver",
+        *_VIEW_INSPECTIONS,
+        *_RECORD_INSPECTIONS,
     ],
     OFFICE: [
         *_VIEW_SHOP,
@@ -65,16 +121,14 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         *_VIEW_SYSTEM,
         *_EDIT_SYSTEM,
         *_REMOVE_SYSTEM,
-        "circuits.add_torquedefault",
-        "circuits.change_torquedefault",
-        "circuits.delete_torquedefault",
+        *_ANY_JOB,
         "shop.delete_owner",
         "shop.delete_vehicle",
         "shop.delete_job",
         "shop.change_shopprofile",
-        "auth.view_user",
-        "auth.add_user",
-        "auth.change_user",
+        "shop.manage_staff",
+        *_VIEW_INSPECTIONS,
+        *_WRENCHES,
     ],
 }
 
@@ -88,10 +142,12 @@ def role_names(user) -> list[str]:
 
 
 def sync_role_groups() -> None:
-    """Create any missing role group and give each role its permissions (idempotent).
+    """Create any missing role group and give each role exactly its permissions
+    (idempotent): a permission no longer listed is taken away again.
 
-    Migrations create the roles on a new database; this restores them after a flush
-    (transactional tests) or when a later issue adds permissions to a role.
+    Migrations set the roles on a database; this restores them after a flush
+    (transactional tests) or brings a database whose groups were edited by hand back to
+    the table. The migration shop/0003_role_review does the same with a frozen copy.
     """
     from django.contrib.auth.models import Group, Permission
 
@@ -103,4 +159,4 @@ def sync_role_groups() -> None:
             wanted.append(
                 Permission.objects.get(content_type__app_label=app_label, codename=codename)
             )
-        group.permissions.add(*wanted)
+        group.permissions.set(wanted)

@@ -3,7 +3,8 @@
 Documented variables (see README "Running for a real shop"):
 SECRET_KEY, DEBUG, ALLOWED_HOSTS, CSRF_TRUSTED_ORIGINS, TIME_ZONE, DATABASE_URL,
 SECURE_SSL_REDIRECT, SECURE_PROXY_SSL_HEADER, SECURE_HSTS_SECONDS, MEDIA_ROOT,
-MEDIA_STORAGE_BACKEND / MEDIA_STORAGE_OPTIONS (JSON) for an S3-compatible store.
+MEDIA_STORAGE_BACKEND / MEDIA_STORAGE_OPTIONS (JSON) for an S3-compatible store,
+REVERSE_PROXY_COUNT, SESSION_IDLE_MINUTES, SIGN_IN_FAILURE_LIMIT, SIGN_IN_COOLOFF_MINUTES.
 """
 
 from __future__ import annotations
@@ -11,9 +12,11 @@ from __future__ import annotations
 import json
 import os
 import secrets
+from datetime import timedelta
 from pathlib import Path
 
 import dj_database_url
+from csp.constants import NONE, SELF
 
 BASE_DIR = Path(__file__).resolve().parent.parent
 VAR_DIR = Path(os.environ.get("AMPWRIGHT_VAR_DIR", BASE_DIR / "var"))
@@ -28,6 +31,21 @@ def env_bool(name: str, default: bool) -> bool:
 
 def env_list(name: str, default: str) -> list[str]:
     return [item.strip() for item in os.environ.get(name, default).split(",") if item.strip()]
+
+
+def env_int(name: str, default: int, *, minimum: int) -> int:
+    """A whole number from the environment; a typo stops the start-up with its name rather
+    than silently running with no limit."""
+    value = os.environ.get(name, "").strip()
+    if not value:
+        return default
+    try:
+        number = int(value)
+    except ValueError:
+        raise ValueError(f"{name} must be a whole number, not {value!r}") from None
+    if number < minimum:
+        raise ValueError(f"{name} must be at least {minimum}, not {number}")
+    return number
 
 
 def _local_secret_key() -> str:
@@ -58,21 +76,36 @@ INSTALLED_APPS = [
     "django.contrib.staticfiles",
     "django_htmx",
     "template_partials",
+    "axes",
+    "csp",
     "shop",
     "circuits",
     "inspections",
 ]
 
 MIDDLEWARE = [
+    # First, so everything after it (sign-in throttling, the security log) sees the
+    # device's address rather than the reverse proxy's.
+    "shop.middleware.ClientAddressMiddleware",
+    # A NUL character in the path or query string is refused with 400 before any view
+    # puts it into a query (PostgreSQL raises DataError on NUL).
+    "shop.request_guard.RejectNulCharactersMiddleware",
     "django.middleware.security.SecurityMiddleware",
+    "csp.middleware.CSPMiddleware",
+    "shop.middleware.PermissionsPolicyMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
     "django.contrib.sessions.middleware.SessionMiddleware",
     "django.middleware.common.CommonMiddleware",
     "django.middleware.csrf.CsrfViewMiddleware",
     "django.contrib.auth.middleware.AuthenticationMiddleware",
+    "shop.middleware.SessionIdleTimeoutMiddleware",
+    "shop.middleware.NoStoreForSignedInMiddleware",
     "django.contrib.messages.middleware.MessageMiddleware",
     "django.middleware.clickjacking.XFrameOptionsMiddleware",
     "django_htmx.middleware.HtmxMiddleware",
+    "shop.middleware.HtmxSignInRedirectMiddleware",
+    # Last, as django-axes asks: it turns a locked-out sign-in into the lock-out page.
+    "axes.middleware.AxesMiddleware",
 ]
 
 ROOT_URLCONF = "shop.urls"
@@ -130,6 +163,90 @@ AUTH_PASSWORD_VALIDATORS = [
 LOGIN_URL = "login"
 LOGIN_REDIRECT_URL = "job_list"
 LOGOUT_REDIRECT_URL = "login"
+
+# Sign-in throttling (django-axes), on the app's sign-in and the admin's alike: after
+# SIGN_IN_FAILURE_LIMIT wrong passwords for one username from one address, that username
+# cannot sign in from that address for SIGN_IN_COOLOFF_MINUTES. Keyed on the pair so a
+# colleague on the same tablet still signs in, and nobody elsewhere can lock a name out
+# by guessing at it. `manage.py axes_reset_username NAME` lifts a lock early (README).
+AUTHENTICATION_BACKENDS = [
+    "axes.backends.AxesStandaloneBackend",  # first: it refuses locked pairs before any check
+    "django.contrib.auth.backends.ModelBackend",
+]
+AXES_FAILURE_LIMIT = env_int("SIGN_IN_FAILURE_LIMIT", 5, minimum=1)
+SIGN_IN_COOLOFF = timedelta(minutes=env_int("SIGN_IN_COOLOFF_MINUTES", 15, minimum=1))
+AXES_COOLOFF_TIME = SIGN_IN_COOLOFF
+AXES_LOCKOUT_PARAMETERS = [["username", "ip_address"]]
+# Tries during a lock-out are refused without extending it, so the page's "15 minutes
+# from the last failed try" holds and a locked person is not kept out by their own retries.
+AXES_RESET_COOL_OFF_ON_FAILURE_DURING_LOCKOUT = False
+AXES_RESET_ON_SUCCESS = True  # a few slips before a good sign-in do not count towards later
+AXES_LOCKOUT_TEMPLATE = "registration/locked_out.html"
+AXES_HTTP_RESPONSE_CODE = 429
+# Successful sign-ins are not copied into axes' own table: the security log records what
+# matters, and the table would only grow.
+AXES_DISABLE_ACCESS_LOG = True
+# ClientAddressMiddleware has already put the device's address in REMOTE_ADDR.
+AXES_IPWARE_META_PRECEDENCE_ORDER = ("REMOTE_ADDR",)
+# Number of reverse proxies in front of the app that append to X-Forwarded-For (README);
+# 0 trusts no forwarded header at all.
+REVERSE_PROXY_COUNT = env_int("REVERSE_PROXY_COUNT", 0, minimum=0)
+
+# Sessions on shared tablets end after SESSION_IDLE_MINUTES without a request
+# (SessionIdleTimeoutMiddleware keeps an active session's expiry moving).
+SESSION_IDLE_MINUTES = env_int("SESSION_IDLE_MINUTES", 30, minimum=1)
+SESSION_COOKIE_AGE = SESSION_IDLE_MINUTES * 60
+SESSION_SAVE_EVERY_REQUEST = False  # one write a minute per session is enough (SQLite)
+
+# Request size limits. Form posts (a circuit, a device with its terminals, a pasted
+# waiver reason) stay far below 2.5 MB; uploaded files do not count towards it. The CSV
+# import refuses files over 2 MB itself, and photos (next) go up to about 10 MB: files
+# over FILE_UPLOAD_MAX_MEMORY_SIZE are streamed to a temporary file instead of held in
+# memory. Django has no limit on a whole multipart body, so the reverse proxy's
+# (README: 12 MB) is the one that stops a huge upload before it reaches a worker.
+DATA_UPLOAD_MAX_MEMORY_SIZE = 2_621_440  # 2.5 MiB of non-file form data
+FILE_UPLOAD_MAX_MEMORY_SIZE = 2_621_440  # larger files go to a temporary file
+# The largest form, a device with its terminal formset (about 8 fields a terminal), stays
+# under 500 fields even for a 60-stud busbar; 1,000 leaves room and still refuses a post
+# built to make the parser hold hundreds of thousands of fields.
+DATA_UPLOAD_MAX_NUMBER_FIELDS = 1000
+DATA_UPLOAD_MAX_NUMBER_FILES = 20  # a handful of photos at once, never hundreds
+
+# Content-Security-Policy (django-csp): nothing inline, nothing from elsewhere. Pages keep
+# scripts and styles in static/; the diagram and QR codes are inline SVG styled by
+# presentation attributes, which style-src does not govern.
+CONTENT_SECURITY_POLICY = {
+    "DIRECTIVES": {
+        "default-src": [SELF],
+        "script-src": [SELF],
+        "style-src": [SELF],
+        "img-src": [SELF],
+        "font-src": [SELF],
+        "connect-src": [SELF],
+        "form-action": [SELF],
+        "frame-ancestors": [NONE],
+        "base-uri": [NONE],
+        "object-src": [NONE],
+    }
+}
+# Browser features the app does not use are off; the camera stays available to the app's
+# own pages for job photos.
+PERMISSIONS_POLICY = {
+    "camera": ["self"],
+    "microphone": [],
+    "geolocation": [],
+    "payment": [],
+    "usb": [],
+    "serial": [],
+    "hid": [],
+    "midi": [],
+    "accelerometer": [],
+    "gyroscope": [],
+    "magnetometer": [],
+    "display-capture": [],
+    "xr-spatial-tracking": [],
+    "browsing-topics": [],
+}
 
 LANGUAGE_CODE = "en"
 TIME_ZONE = os.environ.get("TIME_ZONE", "UTC")
@@ -202,6 +319,9 @@ LOGGING = {
             "handlers": ["security_stdout"],
             "level": os.environ.get("SECURITY_LOG_LEVEL", "INFO"),
             "propagate": False,
-        }
+        },
+        # django-axes logs each failure itself; the security logger already records them
+        # (shop.signals), so only its errors are kept.
+        "axes": {"level": "ERROR"},
     },
 }

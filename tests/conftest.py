@@ -9,6 +9,13 @@ from shop import roles
 from tests.factories import make_user
 
 
+@pytest.fixture(autouse=True)
+def _quick_password_hashing(settings):
+    # The shop's hasher is deliberately slow (hundreds of ms a password); tests create
+    # many users, so they hash with a quick one. Nothing under test depends on which.
+    settings.PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]
+
+
 @pytest.fixture
 def technician(db):
     return make_user(roles.TECHNICIAN, first_name="Test", last_name="Technician")

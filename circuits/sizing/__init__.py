@@ -8,6 +8,7 @@ inside. Public API::
     CircuitInput(system_voltage_v=12, current_a=20, length_m=3.0, ...)
     evaluate(inp) -> SizingResult             recommend(inp) -> Recommendation
     size_circuit(inp) -> Report               CAUTION
+    parse_quantity("10 ft", kind="length") -> Parsed (value in SI), LIMITS per field
 """
 
 from __future__ import annotations
@@ -19,6 +20,7 @@ from .errors import SizeNotationError, SizingError, UnitError
 from .findings import CODES, SEVERITY_ORDER, Finding
 from .inputs import CircuitInput
 from .notation import ACCEPTED_FORMS, format_size, is_bare_number, parse_size
+from .quantity import LIMITS, Parsed, parse_quantity
 from .report import CAUTION, Report, size_circuit
 from .units import Q_, parse_length, parse_torque, ureg
 
@@ -31,6 +33,8 @@ __all__ = [
     "ConductorSize",
     "Factor",
     "Finding",
+    "LIMITS",
+    "Parsed",
     "Q_",
     "Recommendation",
     "Report",
@@ -44,6 +48,7 @@ __all__ = [
     "format_size",
     "is_bare_number",
     "parse_length",
+    "parse_quantity",
     "parse_size",
     "parse_torque",
     "recommend",

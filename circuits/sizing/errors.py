@@ -15,7 +15,9 @@ class SizingError(ValueError):
 
 
 class UnitError(SizingError):
-    """A quantity has the wrong dimension, no unit, or a value that is not positive."""
+    """A quantity cannot be read, has no unit or one not on its kind's allow-list, or is
+    outside its field's range (``quantity.LIMITS``). The message is fit to show beside
+    the field."""
 
 
 class SizeNotationError(SizingError):

@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import dataclasses
 import re
+import unicodedata
 
 from .catalogue import ConductorSize, catalogue_by_label
 from .errors import SizeNotationError
@@ -36,21 +37,36 @@ _NUMBER_WORDS = {
     "four": 4, "quad": 4, "quadruple": 4, "1": 1, "2": 2, "3": 3, "4": 4,
 }  # fmt: skip
 
+MAX_SIZE_TEXT = 40
 _METRIC = re.compile(
     r"^(\d+(?:[.,]\d+)?)\s*(?:mm2|mm\^2|mm\*\*2|sq\.?\s*mm|sqmm|square\s*mm"
-    r"|square\s*millimet(?:re|er)s?)$"
+    r"|square\s*millimet(?:re|er)s?)$",
+    re.ASCII,
 )
-_KCMIL = re.compile(r"^(\d+)\s*(?:kcmil|mcm)$")
-_SLASH_AUGHT = re.compile(r"^(?:#|no\.?)?\s*(\d)\s*[/-]\s*0" + _AWG_SUFFIX + "$")
-_ZEROS = re.compile(r"^(?:#|no\.?)?\s*(0{1,4})" + _AWG_SUFFIX + "$")
-_MARKED_AWG = re.compile(r"^(?:#|no\.?)\s*(\d+)" + _AWG_SUFFIX + "$")
-_SUFFIXED_AWG = re.compile(r"^(\d+)\s*(?:awg|ga\.?|gauge|g)$")
-_BARE = re.compile(r"^(\d+)$")
-_WORDS = re.compile(r"^(?:([a-z0-9]+)[\s-]*)?(?:aught|ought)" + _AWG_SUFFIX + "$")
+_KCMIL = re.compile(r"^(\d+)\s*(?:kcmil|mcm)$", re.ASCII)
+_SLASH_AUGHT = re.compile(r"^(?:#|no\.?)?\s*(\d)\s*[/-]\s*0" + _AWG_SUFFIX + "$", re.ASCII)
+_ZEROS = re.compile(r"^(?:#|no\.?)?\s*(0{1,4})" + _AWG_SUFFIX + "$", re.ASCII)
+_MARKED_AWG = re.compile(r"^(?:#|no\.?)\s*(\d+)" + _AWG_SUFFIX + "$", re.ASCII)
+_SUFFIXED_AWG = re.compile(r"^(\d+)\s*(?:awg|ga\.?|gauge|g)$", re.ASCII)
+_BARE = re.compile(r"^(\d+)$", re.ASCII)
+_WORDS = re.compile(r"^(?:([a-z0-9]+)[\s-]*)?(?:aught|ought)" + _AWG_SUFFIX + "$", re.ASCII)
+
+
+def _ascii_digits(text: str) -> str:
+    """Decimal digits of any script (Arabic-Indic, Devanagari...) as ASCII digits, the way
+    the quantity parser reads them; other characters are left as they are."""
+    return "".join(
+        str(unicodedata.decimal(ch))
+        if not ch.isascii() and unicodedata.category(ch) == "Nd"
+        else ch
+        for ch in text
+    )
 
 
 def _clean(text: str) -> str:
-    cleaned = text.strip().lower().replace("²", "2").replace("\u00a0", " ")
+    # "²" is only the square of "mm²"; alone it is no digit ("²" is not a size 2).
+    cleaned = text.strip().lower().replace("mm²", "mm2").replace("\u00a0", " ")
+    cleaned = _ascii_digits(cleaned)
     return re.sub(r"\s+", " ", cleaned)
 
 
@@ -97,6 +113,10 @@ def parse_size(text: str) -> ConductorSize:
     """Parse a conductor size as people write it; raise ``SizeNotationError`` otherwise."""
     if not isinstance(text, str) or not text.strip():
         raise _error(str(text) if text is not None else "", "the size is empty")
+    if len(text) > MAX_SIZE_TEXT:
+        # Checked first: no size is written in more characters, and a long run of digits
+        # must not reach int() (which refuses more than 4300 digits with a ValueError).
+        raise _error(text[:MAX_SIZE_TEXT] + "…", f"a size is at most {MAX_SIZE_TEXT} characters")
     cleaned = _clean(text)
     if match := _METRIC.match(cleaned):
         nominal = float(match.group(1).replace(",", "."))

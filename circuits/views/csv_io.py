@@ -1,4 +1,8 @@
-"""The circuit schedule as CSV: download it, or upload one to create and update circuits."""
+"""The circuit schedule as CSV: download it, or upload one to create and update circuits.
+
+Importing needs circuits.add_circuit and the job assignment; updating circuits that
+already exist by import is a lead's (shop.import_circuit_updates): for anyone else an
+existing tag is refused on its row and the file is not imported."""
 
 from __future__ import annotations
 
@@ -21,6 +25,9 @@ from circuits.csv_io import (
     read_upload,
 )
 from circuits.views.access import _get_job_for_user
+from shop.security import security_log
+
+UPDATE_BY_IMPORT_PERM = "shop.import_circuit_updates"
 
 MAX_UPLOAD_BYTES = 2 * 1024 * 1024
 
@@ -59,15 +66,21 @@ def circuit_csv_export(request: HttpRequest, number: str) -> HttpResponse:
 @login_required
 @require_http_methods(["GET", "POST"])
 def circuit_csv_import(request: HttpRequest, number: str) -> HttpResponse:
-    job = _get_job_for_user(request.user, number, perm="circuits.add_circuit")
+    job = _get_job_for_user(request.user, number, perm="circuits.add_circuit", write=True)
     posted = request.method == "POST"
     form = CsvUploadForm(request.POST, request.FILES) if posted else CsvUploadForm()
     result: ImportResult | None = None
+    may_update = request.user.has_perm(UPDATE_BY_IMPORT_PERM)
     if posted and form.is_valid():
-        result = circuits_from_csv(
-            job=job,
-            text=form.cleaned_data["file"],
-            allow_update=request.user.has_perm("circuits.change_circuit"),
+        result = circuits_from_csv(job=job, text=form.cleaned_data["file"], allow_update=may_update)
+        security_log(
+            "import",
+            request=request,
+            job=job.number,
+            ok=result.ok,
+            created=len(result.created),
+            updated=len(result.updated),
+            errors=len(result.errors),
         )
     context = {
         "job": job,
@@ -75,6 +88,7 @@ def circuit_csv_import(request: HttpRequest, number: str) -> HttpResponse:
         "result": result,
         "columns": COLUMN_HELP,
         "required": REQUIRED,
+        "may_update": may_update,
     }
     template = "circuits/csv_import.html"
     if request.htmx and posted:

@@ -1,10 +1,20 @@
 """A job's devices: list, detail (terminals, circuits and the terminations landing on
-it, with their torque specs), new and edit (with the terminals inline), delete."""
+it, with their torque specs), new and edit (with the terminals inline); delete lives in
+removals.py and is routed here.
+
+Writes need the job assignment (shop.views.access). The terminal rows are checked against
+the device before anything is validated: a row claiming to be a terminal the device does
+not have, or an existing terminal posted as a new row (a lie in the formset's management
+form), gets a 400 page and saves nothing; removing a terminal needs
+circuits.delete_terminal, and the form offers it only to those who hold it."""
 
 from __future__ import annotations
 
+from django import forms
 from django.contrib import messages
 from django.contrib.auth.decorators import login_required
+from django.core.exceptions import PermissionDenied
+from django.db import IntegrityError
 from django.db.models import Count, Q
 from django.http import HttpRequest, HttpResponse
 from django.shortcuts import redirect, render
@@ -15,6 +25,13 @@ from circuits.forms import DeviceForm, TerminalFormSet
 from circuits.models import Circuit, Device, Termination
 from circuits.services import device_save
 from circuits.views.access import _get_device_for_user, _get_job_for_user
+from circuits.views.removals import device_delete
+from shop.views.errors import bad_request_page
+
+PREFIX = "terminals"
+DELETE_TERMINAL_PERM = "circuits.delete_terminal"
+# Far above any real device (DATA_UPLOAD_MAX_NUMBER_FIELDS stops larger posts earlier).
+MAX_ROWS = 1000
 
 
 def _circuits_of(device: Device):
@@ -55,11 +72,85 @@ def device_detail(request: HttpRequest, number: str, pk: int) -> HttpResponse:
 
 
 def _device_form(request, job, device: Device | None):
-    """The device form and its terminals formset, bound on POST."""
+    """The device form and its terminals formset, bound on POST. The formset offers
+    "remove" only to users who may delete terminals."""
     data = request.POST if request.method == "POST" else None
     form = DeviceForm(data, instance=device, job=job)
-    terminals = TerminalFormSet(data, instance=form.instance, prefix="terminals")
+    terminals = TerminalFormSet(data, instance=form.instance, prefix=PREFIX)
+    # Before the rows are built (they are built on first use), so no DELETE field exists.
+    terminals.can_delete = request.user.has_perm(DELETE_TERMINAL_PERM)
     return form, terminals
+
+
+def _count(data, name: str) -> int | None:
+    try:
+        return int(data.get(f"{PREFIX}-{name}", ""))
+    except (TypeError, ValueError):
+        return None
+
+
+def _formset_lie(data, device: Device | None) -> str:
+    """Why the posted terminal rows cannot come from this device's form, or "".
+
+    Our form posts the device's terminals first (each with its id, INITIAL_FORMS of them),
+    then new rows without an id. A missing or unreadable count is left to the formset,
+    which reports it beside the terminals."""
+    total, initial = _count(data, "TOTAL_FORMS"), _count(data, "INITIAL_FORMS")
+    if total is None or initial is None:
+        return ""
+    stale = (
+        "The terminal rows do not match this device's terminals (they were changed since "
+        "the page was opened, or the form was altered). Nothing was saved; open the device "
+        "again and redo the change."
+    )
+    if not 0 <= initial <= total or total > MAX_ROWS:
+        return stale
+    known = {str(pk) for pk in device.terminals.values_list("pk", flat=True)} if device else set()
+    seen: set[str] = set()
+    for index in range(total):
+        posted = str(data.get(f"{PREFIX}-{index}-id", "")).strip()
+        if index < initial:
+            if posted not in known or posted in seen:
+                return stale
+            seen.add(posted)
+        elif posted:
+            return stale
+    return ""
+
+
+def _posted_deletes(data) -> bool:
+    """Whether any terminal row was posted with its remove box ticked."""
+    total = _count(data, "TOTAL_FORMS") or 0
+    checkbox = forms.CheckboxInput()
+    return any(
+        checkbox.value_from_datadict(data, None, f"{PREFIX}-{index}-DELETE")
+        for index in range(min(total, MAX_ROWS))
+    )
+
+
+def _refused(request, device: Device | None) -> HttpResponse | None:
+    """The answer to a POST the terminal rows forbid, or None when it may go ahead."""
+    if request.method != "POST":
+        return None
+    if not request.user.has_perm(DELETE_TERMINAL_PERM) and _posted_deletes(request.POST):
+        raise PermissionDenied("Removing a terminal is lead or office work; ask a lead.")
+    lie = _formset_lie(request.POST, device)
+    return bad_request_page(request, lie) if lie else None
+
+
+def _save(form, terminals) -> Device | None:
+    """Save the device and its terminals together; a clash the validation could not see
+    (someone saved a terminal of the same name at the same moment) is shown beside the
+    form, and nothing is saved."""
+    try:
+        return device_save(form=form, terminals=terminals)
+    except IntegrityError:
+        form.add_error(
+            None,
+            "Another change to this device or its terminals was saved at the same moment; "
+            "nothing of yours was saved. Check the names and save again.",
+        )
+        return None
 
 
 def _after_save(request, job, device: Device) -> HttpResponse:
@@ -74,43 +165,32 @@ def _render_form(request, job, form, terminals, device: Device | None) -> HttpRe
     return render(request, "circuits/device_form.html", context)
 
 
-@login_required
-@require_http_methods(["GET", "POST"])
-def device_new(request: HttpRequest, number: str) -> HttpResponse:
-    job = _get_job_for_user(request.user, number, perm="circuits.add_device")
-    form, terminals = _device_form(request, job, None)
-    if request.method == "POST" and form.is_valid() and terminals.is_valid():
-        device = device_save(form=form, terminals=terminals)
-        messages.success(request, f"Device {device.name} saved.")
-        return _after_save(request, job, device)
-    return _render_form(request, job, form, terminals, None)
-
-
-@login_required
-@require_http_methods(["GET", "POST"])
-def device_edit(request: HttpRequest, number: str, pk: int) -> HttpResponse:
-    job, device = _get_device_for_user(request.user, number, pk, perm="circuits.change_device")
+def _form_page(request, job, device: Device | None) -> HttpResponse:
+    """New and edit alike: refuse a forbidden or tampered post, else validate and save."""
+    if (refusal := _refused(request, device)) is not None:
+        return refusal
     form, terminals = _device_form(request, job, device)
-    if request.method == "POST" and form.is_valid() and terminals.is_valid():
-        device = device_save(form=form, terminals=terminals)
-        messages.success(request, f"Device {device.name} saved.")
-        return _after_save(request, job, device)
+    valid = request.method == "POST" and form.is_valid() and terminals.is_valid()
+    if valid and (saved := _save(form, terminals)) is not None:
+        messages.success(request, f"Device {saved.name} saved.")
+        return _after_save(request, job, saved)
     return _render_form(request, job, form, terminals, device)
 
 
 @login_required
 @require_http_methods(["GET", "POST"])
-def device_delete(request: HttpRequest, number: str, pk: int) -> HttpResponse:
-    job, device = _get_device_for_user(request.user, number, pk, perm="circuits.delete_device")
-    in_use = list(_circuits_of(device).values_list("tag", flat=True))
-    if request.method == "POST" and not in_use:
-        name = device.name
-        device.delete()
-        messages.success(request, f"Device {name} deleted.")
-        return redirect("device_list", number=job.number)
-    context = {"job": job, "device": device, "in_use": in_use}
-    refused = request.method == "POST" and in_use
-    return render(request, "circuits/device_delete.html", context, status=409 if refused else 200)
+def device_new(request: HttpRequest, number: str) -> HttpResponse:
+    job = _get_job_for_user(request.user, number, perm="circuits.add_device", write=True)
+    return _form_page(request, job, None)
+
+
+@login_required
+@require_http_methods(["GET", "POST"])
+def device_edit(request: HttpRequest, number: str, pk: int) -> HttpResponse:
+    job, device = _get_device_for_user(
+        request.user, number, pk, perm="circuits.change_device", write=True
+    )
+    return _form_page(request, job, device)
 
 
 urlpatterns = [

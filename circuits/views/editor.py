@@ -1,4 +1,5 @@
-"""Circuit editor: new, edit, delete, and the live sizing panel beside the form.
+"""Circuit editor: new, edit, and the live sizing panel beside the form (delete is in
+removals.py, routed here).
 
 The panel is rendered from the saved circuit on a plain page load (with the whole-system
 findings and waivers), and from the bound form while the person types (htmx posts the
@@ -19,7 +20,7 @@ from django.urls import path
 from django.views.decorators.http import require_http_methods, require_POST
 
 from circuits.forms import CircuitForm
-from circuits.models import Circuit, Termination
+from circuits.models import Circuit
 from circuits.services import circuit_create, circuit_update
 from circuits.sizing import CAUTION, Report
 from circuits.system import (
@@ -28,7 +29,14 @@ from circuits.system import (
     job_system_report,
     size_one,
 )
-from circuits.views.access import _get_circuit_for_user, _get_job_for_user, require_perm
+from circuits.views.access import (
+    _get_circuit_for_user,
+    _get_job_for_user,
+    require_job_write,
+    require_perm,
+)
+from circuits.views.removals import circuit_delete
+from shop.fields import parse_id
 
 
 @dataclass
@@ -84,7 +92,9 @@ class Panel:
 
 
 def _with_waivers(job, findings: list[SystemFinding]) -> list[SystemFinding]:
-    waivers = {(w.code, w.subject): w for w in job.waivers.select_related("lead")}
+    # Waivers in force only; each covers its finding only on the facts it was granted on
+    # (SystemFinding.waived), so a draft that differs shows the finding open.
+    waivers = {(w.code, w.subject): w for w in job.waivers.active().select_related("lead")}
     for finding in findings:
         finding.waiver = waivers.get((finding.code, finding.subject))
     return sorted(findings, key=lambda f: f.rank)
@@ -159,7 +169,7 @@ def _save(form: CircuitForm, job, circuit: Circuit | None) -> Circuit | None:
 @login_required
 @require_http_methods(["GET", "POST"])
 def circuit_new(request: HttpRequest, number: str) -> HttpResponse:
-    job = _get_job_for_user(request.user, number, perm="circuits.add_circuit")
+    job = _get_job_for_user(request.user, number, perm="circuits.add_circuit", write=True)
     if request.method == "POST":
         form = CircuitForm(request.POST, job=job)
         if form.is_valid() and (saved := _save(form, job, None)) is not None:
@@ -179,6 +189,7 @@ def circuit_edit(request: HttpRequest, number: str, pk: int) -> HttpResponse:
     job, circuit = _get_circuit_for_user(request.user, number, pk, perm="circuits.view_circuit")
     if request.method == "POST":
         require_perm(request.user, "circuits.change_circuit")
+        require_job_write(request.user, job)
         # The form edits a copy, so the page keeps the saved tag while errors are shown.
         form = CircuitForm(request.POST, instance=copy.copy(circuit), job=job)
         if form.is_valid() and (saved := _save(form, job, form.instance)) is not None:
@@ -195,8 +206,9 @@ def circuit_preview(request: HttpRequest, number: str) -> HttpResponse:
     """The live panel for the form as typed. Binds the form and sizes it; saves nothing."""
     job = _get_job_for_user(request.user, number, perm="circuits.view_circuit")
     instance = None
-    if request.GET.get("circuit", "").isdigit():
-        instance = get_object_or_404(Circuit, job=job, pk=int(request.GET["circuit"]))
+    # ASCII digits within 64 bits only ("²" or 10**308 is no circuit, not a 500).
+    if (circuit_id := parse_id(request.GET.get("circuit", ""))) is not None:
+        instance = get_object_or_404(Circuit, job=job, pk=circuit_id)
     form = CircuitForm(request.POST, instance=instance, job=job, for_save=False)
     context = {"job": job, "panel": panel_for_form(form, job), "oob": True}
     ends = _ends(request.POST.get("from_device"), request.POST.get("to_device"))
@@ -207,23 +219,6 @@ def circuit_preview(request: HttpRequest, number: str) -> HttpResponse:
         context["terminal_form"] = CircuitForm(job=job, initial=picked)
         context["terminals_for"] = ends
     return render(request, "circuits/editor.html#panel", context)
-
-
-@login_required
-@require_http_methods(["GET", "POST"])
-def circuit_delete(request: HttpRequest, number: str, pk: int) -> HttpResponse:
-    job, circuit = _get_circuit_for_user(request.user, number, pk, perm="circuits.delete_circuit")
-    if request.method == "POST":
-        tag = circuit.tag
-        circuit.delete()  # its terminations go with it (CASCADE)
-        messages.success(request, f"Circuit {tag} deleted.")
-        return redirect(job)
-    count = Termination.objects.filter(circuit=circuit).count()
-    return render(
-        request,
-        "circuits/circuit_delete.html",
-        {"job": job, "circuit": circuit, "termination_count": count},
-    )
 
 
 urlpatterns = [

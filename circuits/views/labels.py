@@ -16,6 +16,7 @@ from django.views.decorators.http import require_GET
 from circuits.diagram import size_text
 from circuits.models import Circuit
 from circuits.views.access import _get_job_for_user
+from shop.fields import parse_id
 
 
 @dataclass(frozen=True)
@@ -58,9 +59,12 @@ def circuit_labels(request: HttpRequest, number: str) -> HttpResponse:
     circuits = job.circuits.for_schedule()
     one = request.GET.get("circuit", "")
     if one:  # reprint the two labels of one circuit
-        if not one.isdigit():
+        # ASCII digits within 64 bits only: "²" passes isdigit() but not int(), and
+        # 10**308 overflows the database's integers.
+        circuit_id = parse_id(one)
+        if circuit_id is None:
             raise Http404("No such circuit.")
-        circuits = [get_object_or_404(circuits, pk=one)]
+        circuits = [get_object_or_404(circuits, pk=circuit_id)]
     labels = wire_labels(circuits, request.build_absolute_uri)
     return render(request, "circuits/labels.html", {"job": job, "labels": labels, "one": one})
 

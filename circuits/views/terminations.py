@@ -9,28 +9,24 @@ from django.contrib.auth.decorators import login_required
 from django.http import HttpRequest, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import path
-from django.utils.http import url_has_allowed_host_and_scheme
 from django.views.decorators.http import require_http_methods
 
 from circuits.forms import TerminationForm
 from circuits.models import Termination
 from circuits.services import termination_spec_fill
 from circuits.views.access import _get_job_for_user
+from shop.views.access import safe_next
 
 
 def _back_url(request: HttpRequest, termination: Termination) -> str:
-    wanted = request.POST.get("next") or request.GET.get("next") or ""
-    if wanted and url_has_allowed_host_and_scheme(
-        wanted, allowed_hosts={request.get_host()}, require_https=request.is_secure()
-    ):
-        return wanted
-    return termination.circuit.get_absolute_url()
+    # Only a same-site path; anything else (a view name such as "NaN") goes to the circuit.
+    return safe_next(request, termination.circuit.get_absolute_url())
 
 
 @login_required
 @require_http_methods(["GET", "POST"])
 def termination_edit(request: HttpRequest, number: str, pk: int) -> HttpResponse:
-    job = _get_job_for_user(request.user, number, perm="circuits.change_termination")
+    job = _get_job_for_user(request.user, number, perm="circuits.change_termination", write=True)
     termination = get_object_or_404(
         Termination.objects.select_related(
             "circuit__job", "circuit__from_device", "circuit__to_device", "terminal__device"

@@ -1,5 +1,5 @@
 """The shop's table of default torque specs by stud size and termination kind. They fill
-new terminations unless the device manual's value is known. Office staff edit it;
+new terminations unless the device manual's value is known. Leads edit it;
 everyone who works on the system can read it."""
 
 from __future__ import annotations

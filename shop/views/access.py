@@ -9,18 +9,47 @@ from django.utils.http import url_has_allowed_host_and_scheme
 
 from shop.models import Job
 
+# Leads and office hold it (shop/roles.py); everyone else writes only to their own jobs.
+ANY_JOB_PERM = "shop.work_on_any_job"
+
 
 def require_perm(user, perm: str) -> None:
     if not user.has_perm(perm):
         raise PermissionDenied
 
 
-def _get_job_for_user(user, number: str, *, perm: str = "shop.view_job") -> Job:
+def may_write_job(user, job: Job) -> bool:
+    """Whether the user may change this job's records: leads, office and superusers on
+    any job; anyone else only on a job they are assigned to (as a technician or its lead)."""
+    if not user.is_authenticated or not user.is_active:
+        return False
+    if user.has_perm(ANY_JOB_PERM) or job.lead_id == user.pk:
+        return True
+    # Uses the prefetched technicians when the job came from _get_job_for_user.
+    return any(person.pk == user.pk for person in job.technicians.all())
+
+
+def require_job_write(user, job: Job) -> None:
+    """Refuse (403, with the reason in plain words) a write to a job the user is not on."""
+    if not may_write_job(user, job):
+        raise PermissionDenied(
+            f"You are not assigned to job {job.number}; ask a lead to add you to this job."
+        )
+
+
+def _get_job_for_user(
+    user, number: str, *, perm: str = "shop.view_job", write: bool = False
+) -> Job:
+    """The job `number` for a user holding `perm`: 403 without the permission, 404 for no
+    such job, and, when `write`, 403 for a user who is not assigned to the job."""
     require_perm(user, perm)
-    return get_object_or_404(
+    job = get_object_or_404(
         Job.objects.select_related("vehicle__owner", "lead").prefetch_related("technicians"),
         number=number,
     )
+    if write:
+        require_job_write(user, job)
+    return job
 
 
 def safe_next(request: HttpRequest, fallback: str) -> str:

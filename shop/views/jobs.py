@@ -61,7 +61,7 @@ def job_new(request: HttpRequest) -> HttpResponse:
 @login_required
 @require_http_methods(["GET", "POST"])
 def job_edit(request: HttpRequest, number: str) -> HttpResponse:
-    job = _get_job_for_user(request.user, number, perm="shop.change_job")
+    job = _get_job_for_user(request.user, number, perm="shop.change_job", write=True)
     form = JobForm(request.POST or None, instance=job)
     if request.method == "POST" and form.is_valid():
         data = dict(form.cleaned_data)

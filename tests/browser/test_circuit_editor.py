@@ -33,7 +33,7 @@ def _expected(current_a: float, length_m: float) -> dict[str, str]:
 
 
 def test_live_panel_follows_current_and_length_in_feet_or_metres(live_server, sign_in, technician):
-    job = make_job()
+    job = make_job(technicians=[technician])  # a technician writes to the jobs they are on
     make_device(job, name="Busbar", kind="busbar")
     make_device(job, name="Fridge")
     page = sign_in(technician.username)

@@ -39,6 +39,7 @@ def test_touch_targets_are_at_least_44_px(live_server, sign_in, technician):
         page.get_by_role("searchbox"),
         page.locator("a.rowlink").first,
         page.get_by_role("button", name="Sign out"),
+        page.get_by_role("link", name="Change password"),
     ]:
         box = locator.bounding_box()
         assert box is not None

@@ -259,3 +259,85 @@ def test_without_change_permission_existing_tags_are_refused_not_overwritten():
     result = circuits_from_csv(job=job, text=circuits_to_csv(job), allow_update=False)
     assert {(e.row, e.column) for e in result.errors} == {(2, "tag"), (3, "tag"), (4, "tag")}
     assert _snapshot(job) == before
+
+
+# ---- numbers through the strict parser: the form's ranges, row and column errors ----
+
+
+@pytest.mark.parametrize(
+    ("column", "cell", "words"),
+    [
+        ("length", "10 m**(9**9**9)", "unit we do not read"),
+        ("length", "10 (", "unit we do not read"),
+        ("length", "10 m/0", "unit we do not read"),
+        ("length", "10 'ft'", "unit we do not read"),
+        ("length", "1e-300 m", "exponent beyond e±6"),
+        ("length", "600 m", "between 1 cm and 500 m"),
+        ("length", "1" * 16_000 + " m", "at most 40"),
+        ("nominal_voltage", "1e308", "exponent beyond e±6"),
+        ("nominal_voltage", "NaN", "not a finite number"),
+        ("nominal_voltage", "5000 V", "between 1 V and 1000 V"),
+        ("design_current_a", "inf", "not a finite number"),
+        ("design_current_a", "-5 A", "greater than zero"),
+        ("design_current_a", "2²", "not a digit we read"),
+        ("protection_a", "1e6", "between 0.1 A and 10 kA"),
+        ("parallel", "1e30", "exponent beyond e±6"),
+        ("parallel", "9", "at most 8"),
+        ("bundled", "0", "at least 1"),
+        ("bundled", "2.5", "whole number"),
+        ("insulation_c", "1e308", "exponent beyond e±6"),
+        ("protection_distance_m", "-1", "cannot be negative"),
+        ("protection_distance_m", "inf", "not a finite number"),
+        ("protection_distance_m", "1 parsec", "unit we do not read"),
+        ("conductor_size", "1" * 5000, "at most 20"),
+        ("tag", "x" * 100_000, "at most 12"),
+    ],
+)
+def test_bad_numeric_cells_are_refused_on_their_row_and_nothing_is_saved(column, cell, words):
+    job = _system()
+    before = _snapshot(job)
+    rows = _table(circuits_to_csv(job))
+    rows[1][column] = cell
+    result = circuits_from_csv(job=job, text=_write(rows))
+    assert not result.ok
+    assert [(e.row, e.column) for e in result.errors] == [(3, column)], result.errors
+    assert words in result.errors[0].message
+    assert len(str(result.errors[0])) < 300  # a huge cell is not echoed back whole
+    assert result.created == [] and result.updated == []
+    assert _snapshot(job) == before
+
+
+def test_an_ac_voltage_cell_is_held_to_the_ac_range():
+    job = _system()
+    rows = _table(circuits_to_csv(job))
+    rows[2]["nominal_voltage"] = "1200"  # S-01, the shore cord
+    result = circuits_from_csv(job=job, text=_write(rows))
+    assert [(e.row, e.column) for e in result.errors] == [(4, "nominal_voltage")]
+    assert "must be between 1 V and 1000 V" in result.errors[0].message
+
+
+def test_numeric_cells_read_units_unicode_digits_and_a_decimal_comma():
+    job = _system()
+    rows = _table(circuits_to_csv(job))
+    rows[0].update(design_current_a="٦ A", protection_a="7,5", length="3,5 m",
+                   protection_distance_m="20 cm", bundled="२")  # fmt: skip
+    result = circuits_from_csv(job=job, text=_write(rows))
+    assert result.ok, result.errors
+    fridge = job.circuits.get(tag="D-01")
+    assert (fridge.design_current_a, fridge.protection_a) == (Decimal("6"), Decimal("7.5"))
+    assert fridge.length_m == pytest.approx(3.5)
+    assert fridge.protection_distance_m == pytest.approx(0.2)
+    assert fridge.bundled == 2
+
+
+def test_long_length_cells_are_refused_on_their_rows():
+    # The old number-then-unit expression took about 1 s for one 16,000-character cell
+    # and four times as long for each doubling; the parser refuses at its length limit.
+    # (Python's csv module refuses cells over 131,072 characters on its own.)
+    job = _system()
+    rows = _table(circuits_to_csv(job))
+    for row in rows:
+        row["length"] = "1" * 100_000
+    result = circuits_from_csv(job=job, text=_write(rows))
+    assert {(e.row, e.column) for e in result.errors} == {(2, "length"), (3, "length"),
+                                                          (4, "length")}  # fmt: skip

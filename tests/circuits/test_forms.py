@@ -12,10 +12,12 @@ from circuits.forms import (
     DeviceForm,
     TerminalFormSet,
     TerminationForm,
+    TorqueDefaultForm,
     WaiverForm,
     format_length,
 )
-from circuits.models import Circuit, Device, Termination
+from circuits.models import Circuit, Device, Termination, TorqueDefault
+from circuits.sizing import LIMITS
 from tests.circuits.factories import make_circuit, make_device, make_terminal
 from tests.factories import make_job, make_vehicle
 
@@ -85,12 +87,21 @@ def test_length_is_read_with_its_unit(job, typed, unit_select, metres, shown_uni
 @pytest.mark.parametrize(
     ("typed", "words"),
     [
-        ("10 kg", "not a length"),
-        ("ten feet", "Cannot read the length"),
+        ("10 kg", "unit we do not read"),
+        ("ten feet", "Cannot read the one-way length"),
         ("0 m", "greater than zero"),
         ("600 m", "between 1 cm and 500 m"),
-        ("10 parsecs", "between 1 cm and 500 m"),
-        ("10 furlongs and a bit", "Cannot read the length"),
+        ("10 parsecs", "10 parsecs has a unit we do not read; write m, mm, cm, ft or in"),
+        ("10 furlongs and a bit", "unit we do not read"),
+        # Unit text that pint would have evaluated (and crashed or hung on).
+        ("10 (", "unit we do not read"),
+        ("10 m/0", "unit we do not read"),
+        ("10 'ft'", "unit we do not read"),
+        ("10 m**(9**9**9)", "unit we do not read"),
+        ("1e308 m", "exponent beyond e±6"),
+        ("nan", "not a finite number"),
+        ("10² m", "not a digit we read"),
+        ("1" * 41, "at most 40"),
     ],
 )
 def test_a_bad_length_is_an_error_beside_the_length_field(job, typed, words):
@@ -121,7 +132,11 @@ def test_protection_distance_takes_a_unit_and_may_be_zero_or_blank(job):
     assert form.circuit_fields()["protection_distance_m"] is None
     form = CircuitForm(_data(job, protection_distance="near"), job=job)
     assert not form.is_valid()
-    assert "Cannot read the length" in form.errors["protection_distance"][0]
+    assert "Cannot read the protection distance" in form.errors["protection_distance"][0]
+    form = CircuitForm(_data(job, protection_distance="-1 m"), job=job)
+    assert "cannot be negative" in form.errors["protection_distance"][0]
+    form = CircuitForm(_data(job, protection_distance="2 km"), job=job)
+    assert "unit we do not read" in form.errors["protection_distance"][0]
 
 
 def test_an_unreadable_size_lists_the_accepted_forms(job):
@@ -196,7 +211,7 @@ def test_sizing_needs_lists_what_is_missing(job):
     assert form.sizing_draft() is None
     needed = dict(form.sizing_needed())
     assert set(needed) == {"Design current (A)", "One-way length"}
-    assert "Cannot read the length" in needed["One-way length"]
+    assert "Cannot read the one-way length" in needed["One-way length"]
 
 
 def test_device_names_are_unique_within_the_job(job):
@@ -243,3 +258,170 @@ def test_a_waiver_reason_must_say_something(job):
     form = WaiverForm({"code": "CONSTRUCTION_SOLID", "subject": "D-01", "reason": "ok"})
     assert not form.is_valid()
     assert "at least 15 characters (2 so far)" in form.errors["reason"][0]
+
+
+# ---- numbers through the strict parser, with the ranges of its LIMITS table ----
+
+
+@pytest.mark.parametrize(
+    ("name", "typed", "words"),
+    [
+        ("design_current_a", "1e308", "exponent beyond e±6"),
+        ("design_current_a", "NaN", "not a finite number"),
+        ("design_current_a", "inf", "not a finite number"),
+        ("design_current_a", "-5", "greater than zero"),
+        ("design_current_a", "20000", "between 0.01 A and 10 kA"),
+        ("design_current_a", "2²", "not a digit we read"),
+        ("design_current_a", "20 V", "is a voltage, not a current"),
+        ("nominal_voltage", "1001", "between 1 V and 1000 V"),
+        ("nominal_voltage", "0", "greater than zero"),
+        ("nominal_voltage", "1e308", "exponent beyond e±6"),
+        ("protection_a", "1e6", "between 0.1 A and 10 kA"),
+        ("protection_a", "Infinity", "not a finite number"),
+        ("parallel", "9", "at least 1 and at most 8"),
+        ("parallel", "1e30", "exponent beyond e±6"),
+        ("parallel", "1.5", "whole number"),
+        ("bundled", "101", "at least 1 and at most 100"),
+        ("bundled", "0", "at least 1 and at most 100"),
+    ],
+)
+def test_numbers_outside_their_range_are_refused_beside_the_field(job, name, typed, words):
+    form = CircuitForm(_data(job, **{name: typed}), job=job)
+    assert not form.is_valid()
+    assert words in " ".join(form.errors[name]), form.errors
+    assert set(form.errors) == {name}
+
+
+def test_an_ac_voltage_above_its_range_is_refused():
+    job = make_job(make_vehicle(ac_system="230_50"))
+    data = _data(job, role=Circuit.Role.AC_BRANCH, conductors="ac", colour_a="brown",
+                 nominal_voltage="1200")  # fmt: skip
+    form = CircuitForm(data, job=job)
+    assert "between 1 V and 1000 V" in form.errors["nominal_voltage"][0]
+
+
+def test_unicode_decimal_digits_are_read_and_a_unit_may_be_typed(job):
+    # Arabic-Indic ten amps, a length in Devanagari digits, a current in milliamps.
+    form = CircuitForm(_data(job, design_current_a="١٠", length="३ m"), job=job)
+    assert form.is_valid(), form.errors
+    assert form.cleaned_data["design_current_a"] == Decimal(10)
+    assert form.circuit_fields()["length_m"] == pytest.approx(3.0)
+    form = CircuitForm(_data(job, design_current_a="500 mA", nominal_voltage="24 V"), job=job)
+    assert form.is_valid(), form.errors
+    assert form.cleaned_data["design_current_a"] == Decimal("0.5")
+    assert form.cleaned_data["nominal_voltage"] == Decimal(24)
+
+
+@pytest.mark.parametrize("side", ["from_device", "to_device", "from_terminal", "to_terminal"])
+@pytest.mark.parametrize("tampered", [str(10**308), "²", "١", "-1", "1e3"])
+def test_huge_device_id_is_a_field_error(job, side, tampered):
+    form = CircuitForm(_data(job, **{side: tampered}), job=job)
+    assert not form.is_valid()
+    assert side in form.errors
+    message = form.errors[side][0]
+    assert "Select a valid choice" in message or "Choose a terminal" in message
+
+
+def test_unicode_digit_ids_do_not_crash_the_terminal_choices(job):
+    busbar = make_device(job, name="Busbar", kind=Device.Kind.BUSBAR)
+    make_terminal(busbar, name="Stud 1", polarity="pos")
+    # str.isdigit() accepts "²" and int() then refuses it: the device is simply not chosen.
+    form = CircuitForm(job=job, initial={"from_device": "²", "to_device": str(10**308)})
+    assert form.fields["from_terminal"].with_device  # no device picked: every terminal
+    assert "Busbar: Stud 1" in str(form["from_terminal"])
+    bound = CircuitForm(_data(job, from_device="²"), job=job)
+    assert not bound.is_valid()
+    assert "Busbar: Stud 1" in str(bound["from_terminal"])
+
+
+def test_a_termination_torque_outside_its_range_is_refused(job):
+    circuit = make_circuit(job, make_device(job), make_device(job))
+    data = {
+        "kind": "lug",
+        "stud_size": "M8",
+        "torque_value": "5000",
+        "torque_unit": "lbf*ft",  # 6779 N·m (NIST SP 811: 1 lbf·ft = 1.355818 N·m)
+        "torque_tolerance_pct": "60",
+        "torque_source": Termination.SpecSource.MANUAL,
+    }
+    form = TerminationForm(data, instance=circuit.terminations.first())
+    assert not form.is_valid()
+    assert "between 0 and 2000 N·m" in form.errors["torque_value"][0]
+    assert "between 1 % and 30 %" in form.errors["torque_tolerance_pct"][0]
+    for typed in ("nan", "1e308", "-3", "12 N·m"):
+        form = TerminationForm(
+            {**data, "torque_value": typed}, instance=circuit.terminations.first()
+        )
+        assert "torque_value" in form.errors, typed
+
+
+def test_a_default_torque_and_a_terminal_torque_are_range_checked(job):
+    data = {"stud_size": "M8", "kind": "lug", "value": "inf", "unit": "N*m",
+            "tolerance_pct": "10", "source": "Shop table"}  # fmt: skip
+    form = TorqueDefaultForm(data)
+    assert "not a finite number" in form.errors["value"][0]
+    form = TorqueDefaultForm({**data, "value": "3000"})
+    assert "between 0 and 2000 N·m" in form.errors["value"][0]
+    form = TorqueDefaultForm({**data, "value": "9,5"})
+    assert form.is_valid(), form.errors
+    assert form.cleaned_data["value"] == Decimal("9.5")
+    device = make_device(job)
+    terminals = {
+        "terminals-TOTAL_FORMS": "1",
+        "terminals-INITIAL_FORMS": "0",
+        "terminals-0-name": "+",
+        "terminals-0-polarity": "pos",
+        "terminals-0-manual_torque_value": "1e308",
+        "terminals-0-manual_torque_unit": "N*m",
+    }
+    formset = TerminalFormSet(terminals, instance=device, prefix="terminals")
+    assert not formset.is_valid()
+    assert "exponent" in formset.forms[0].errors["manual_torque_value"][0]
+
+
+def test_a_device_input_current_is_range_checked(job):
+    data = {"name": "Inverter", "kind": "inverter_charger", "mounting": "body",
+            "input_current_a": "1e308"}  # fmt: skip
+    form = DeviceForm(data, job=job)
+    assert "exponent" in form.errors["input_current_a"][0]
+    form = DeviceForm({**data, "input_current_a": "16 A"}, job=job)
+    assert form.is_valid(), form.errors
+    assert form.cleaned_data["input_current_a"] == Decimal(16)
+
+
+def _bounds(model, name: str) -> tuple[float | None, float | None]:
+    limits = {
+        type(v).__name__: v.limit_value
+        for v in model._meta.get_field(name).validators
+        if hasattr(v, "limit_value")
+    }
+    return limits.get("MinValueValidator"), limits.get("MaxValueValidator")
+
+
+@pytest.mark.parametrize(
+    ("limit", "model", "name"),
+    [
+        ("length", Circuit, "length_m"),
+        ("parallel", Circuit, "parallel"),
+        ("bundled", Circuit, "bundled"),
+        ("tolerance", TorqueDefault, "tolerance_pct"),
+        ("tolerance", Termination, "torque_tolerance_pct"),
+    ],
+)
+def test_a_value_the_parser_takes_is_one_the_record_keeps(limit, model, name):
+    low, high = _bounds(model, name)
+    assert (LIMITS[limit].low, LIMITS[limit].high) == (low, high)
+
+
+@pytest.mark.parametrize(
+    ("limit", "model", "name"),
+    [
+        ("current", Circuit, "design_current_a"),
+        ("protection", Circuit, "protection_a"),
+        ("voltage", Circuit, "nominal_voltage"),
+        ("input_current", Device, "input_current_a"),
+    ],
+)
+def test_the_parser_lower_bounds_match_the_records(limit, model, name):
+    low, _ = _bounds(model, name)
+    assert LIMITS[limit].low == low

@@ -155,3 +155,11 @@ def test_a_job_without_circuits_has_no_labels(technician_client):
     response, labels = _labels(technician_client, job)
     assert labels == []
     assert b"no labels to print" in response.content
+
+
+@pytest.mark.parametrize("tampered", ["²", "١", str(10**308), str(2**63), "-1", "1e3"])
+def test_unicode_digit_ids_do_not_crash(technician_client, job, tampered):
+    # "²".isdigit() is True but int("²") fails; 10**308 overflows SQLite's integers.
+    url = reverse("circuit_labels", args=[job.number])
+    response = technician_client.get(url, {"circuit": tampered})
+    assert response.status_code == 404

@@ -82,7 +82,7 @@ def test_all_options_are_accepted_together() -> None:
         (["--amps", "20", "--length", "-3 m"], "length must be greater than zero"),
         (["--amps", "20", "--length", "10 ft", "--size", "5"], "Accepted forms"),
         (["--amps", "20", "--length", "10 ft", "--insulation", "70"], "insulation rating 70"),
-        (["--amps", "20", "--length", "10 kg"], "not a length"),
+        (["--amps", "20", "--length", "10 kg"], "unit we do not read"),
         (["--amps", "20", "--length", "10"], "no unit"),
         (["--amps", "20", "--length", "10 ft", "--bundled", "0"], "at least 1"),
     ],
@@ -94,3 +94,88 @@ def test_bad_input_exits_2_with_one_line_and_no_traceback(args: list[str], fragm
     assert len(lines) == 1 and fragment in lines[0]
     assert "Traceback" not in done.stderr
     assert done.stdout == ""
+
+
+@pytest.mark.parametrize(
+    ("args", "fragment"),
+    [
+        (["--volts", "1e308", "--amps", "20", "--length", "10 ft"], "exponent beyond e±6"),
+        (["--volts", "2000", "--amps", "20", "--length", "10 ft"], "between 1 V and 1000 V"),
+        (["--volts", "12", "--amps", "20", "--length", "10 parsecs"], "unit we do not read"),
+        (["--volts", "12", "--amps", "20", "--length", "1e-300 m"], "exponent beyond e±6"),
+        (["--volts", "12", "--amps", "20", "--length", "0.001 m"], "between 1 cm and 500 m"),
+        (["--volts", "12", "--amps", "20", "--length", "10 ft", "--bundled", "1e30"],
+         "exponent beyond e±6"),
+        (["--volts", "12", "--amps", "20", "--length", "10 ft", "--bundled", "500"],
+         "at most 100"),
+        (["--volts", "12", "--amps", "20", "--length", "10 ft", "--parallel", "2.5"],
+         "whole number"),
+        (["--volts", "12", "--amps", "-5", "--length", "10 ft"], "greater than zero"),
+        (["--volts", "12", "--amps", "20000", "--length", "10 ft"], "between 0.01 A and 10 kA"),
+        (["--volts", "nan", "--amps", "20", "--length", "10 ft"], "not a finite number"),
+        (["--volts", "12", "--amps", "inf", "--length", "10 ft"], "not a finite number"),
+        (["--volts", "12", "--amps", "²", "--length", "10 ft"], "not a digit we read"),
+        (["--volts", "12", "--amps", "20", "--length", "10 ft", "--drop", "250"],
+         "between 0 % and 100 %"),
+        (["--volts", "12", "--amps", "20", "--length", "10 ft", "--temp", "1e6"],
+         "between -50 °C and 250 °C"),
+        (["--volts", "12", "--amps", "20", "--length", "10 ft", "--protection", "1e308"],
+         "exponent beyond e±6"),
+        (["--volts", "12", "--amps", "20", "--length", "10 ft", "--size", "1" * 5000],
+         "at most 40"),
+    ],
+)  # fmt: skip
+def test_size_refuses_absurd_values(args: list[str], fragment: str) -> None:
+    done = run(*args)
+    assert done.returncode == 2, done.stdout
+    lines = done.stderr.strip().splitlines()
+    assert len(lines) == 1 and fragment in lines[0], done.stderr
+    assert done.stdout == ""
+
+
+@pytest.mark.parametrize(
+    "args",
+    [
+        ["--volts", "12", "--amps", "20"],  # --length missing
+        ["--volts", "12", "--amps", "20", "--length", "3 m", "--bogus"],
+        ["--volts", "12", "--amps", "20", "--length", "3 m", "--drop", "5", "--critical"],
+        [],
+    ],
+)
+def test_size_argument_error_is_one_line(args: list[str]) -> None:
+    done = run(*args)
+    assert done.returncode == 2
+    lines = done.stderr.strip().splitlines()
+    assert len(lines) == 1, done.stderr
+    assert "usage:" not in done.stderr and "--help" in lines[0]
+    assert done.stdout == ""
+
+
+@pytest.mark.parametrize("length", ["10 (", "10 m/0", "10 'ft'", "10 m**(9**9**9)", "10 m²"])
+def test_size_bad_unit_text_exits_2_without_traceback(length: str) -> None:
+    done = run("--volts", "12", "--amps", "20", "--length", length)
+    assert done.returncode == 2
+    assert "Traceback" not in done.stderr
+    lines = done.stderr.strip().splitlines()
+    assert len(lines) == 1 and length in lines[0]
+
+
+def test_size_reads_units_and_unicode_digits_like_the_form() -> None:
+    typed = run("--volts", "12 V", "--amps", "٢٠ A", "--length", "3,048 m", "--json")
+    plain = run("--volts", "12", "--amps", "20", "--length", "3.048 m", "--json")
+    assert typed.returncode == 0, typed.stderr
+    assert json.loads(typed.stdout) == json.loads(plain.stdout)
+
+
+@pytest.mark.parametrize(
+    "args",
+    [
+        ["--volts", "12", "--amps", "20", "--length", "10 m\nx"],
+        ["--volts", "12", "--amps", "20", "--length", "3 m", "--bogus\nline", "x\ry"],
+    ],
+)
+def test_a_newline_in_an_argument_keeps_the_error_on_one_line(args: list[str]) -> None:
+    done = run(*args)
+    assert done.returncode == 2
+    assert len(done.stderr.strip().splitlines()) == 1, done.stderr
+    assert "\\n" in done.stderr or "\\r" in done.stderr

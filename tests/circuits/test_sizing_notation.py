@@ -90,3 +90,20 @@ def test_anything_else_is_an_error_listing_the_accepted_forms(written: str, hint
 
 def test_size_notation_error_is_a_value_error() -> None:
     assert issubclass(SizeNotationError, ValueError)
+
+
+def test_a_size_longer_than_forty_characters_is_refused_before_parsing():
+    # 5,000 digits would otherwise reach int(), which refuses more than 4,300 digits.
+    with pytest.raises(SizeNotationError, match="at most 40 characters"):
+        parse_size("1" * 5000)
+
+
+def test_digits_of_other_scripts_read_as_their_ascii_digits():
+    assert parse_size("١٠ AWG").label == "10 AWG"  # Arabic-Indic digits
+    assert parse_size("४/0").label == "4/0 AWG"  # Devanagari four
+
+
+@pytest.mark.parametrize("text", ["²", "2²", "⁴/0"])
+def test_superscripts_are_not_digits(text):
+    with pytest.raises(SizeNotationError):
+        parse_size(text)

@@ -10,6 +10,7 @@ from __future__ import annotations
 import pytest
 
 from circuits.sizing import Q_, UnitError, parse_length, parse_torque, ureg
+from circuits.sizing.units import torque_unit
 
 # NIST SP 811 App. B.9 (from memory): newton-metres per unit, and half a unit in the
 # last printed digit as the tolerance.
@@ -53,10 +54,11 @@ def test_foot_and_inch_are_exact_fractions_of_a_metre() -> None:
         ("10 ft", 10 * 0.3048),
         ("120 in", 120 * 0.0254),  # NIST SP 811: in = 0.0254 m
         ("250 cm", 2.5),
-        ("1.5 yd", 1.5 * 3 * 0.3048),  # NIST SP 811: yd = 3 ft
+        ("2500 mm", 2.5),
+        ("4,5 m", 4.5),  # a decimal comma
     ],
 )
-def test_lengths_are_read_in_any_pint_unit(text: str, metres: float) -> None:
+def test_lengths_are_read_in_the_allowed_units(text: str, metres: float) -> None:
     assert parse_length(text) == pytest.approx(metres, rel=1e-12)
 
 
@@ -65,14 +67,26 @@ def test_a_quantity_or_a_number_with_unit_is_accepted() -> None:
     assert parse_length(12, "in") == pytest.approx(0.3048)
 
 
+def test_a_quantity_or_number_is_held_to_the_same_range_as_text() -> None:
+    with pytest.raises(UnitError, match="between 1 cm and 500 m"):
+        parse_length(Q_(1, "km"))
+    with pytest.raises(UnitError, match="no unit"):
+        parse_length(12)
+    with pytest.raises(UnitError, match="not a length"):
+        parse_length(Q_(3, "kg"))
+    with pytest.raises(UnitError, match="unit we do not read"):
+        parse_length(3, "parsec")
+
+
 @pytest.mark.parametrize(
     ("text", "fragment"),
     [
-        ("10 kg", "not a length"),
+        ("10 kg", "unit we do not read"),
         ("10", "no unit"),
         ("-3 m", "greater than zero"),
         ("0 ft", "greater than zero"),
-        ("3 parsecs-ish", "cannot read"),
+        ("3 parsecs-ish", "unit we do not read"),
+        ("1.5 yd", "unit we do not read"),  # not on the allow-list: m, mm, cm, ft, in
         ("", "empty"),
     ],
 )
@@ -105,10 +119,20 @@ def test_torque_is_read_as_trade_spellings_write_it(
     assert parse_torque(text, unit) == pytest.approx(newton_metres, rel=1e-7)
 
 
-@pytest.mark.parametrize(("text", "fragment"), [("10 ft", "not a torque"), ("-5 N*m", "zero")])
+@pytest.mark.parametrize(
+    ("text", "fragment"),
+    [("10 ft", "not a torque"), ("-5 N*m", "zero"), ("10 N*m**(9**9**9)", "do not read")],
+)
 def test_bad_torques_are_refused(text: str, fragment: str) -> None:
     with pytest.raises(UnitError, match=fragment):
         parse_torque(text)
+
+
+def test_torque_unit_names_the_pint_expression_of_an_allowed_spelling() -> None:
+    assert torque_unit("in-lbs") == "force_pound * inch"
+    assert torque_unit("N·m") == str(ureg.newton * ureg.meter)
+    with pytest.raises(UnitError, match="do not read"):
+        torque_unit("newton * meter ** 9")
 
 
 def test_quantities_made_elsewhere_share_the_one_registry() -> None:

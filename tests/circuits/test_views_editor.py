@@ -1,5 +1,6 @@
-"""The circuit editor: new, edit and delete through the services, and the live panel
-that sizes what is typed without saving anything."""
+"""The circuit editor: new, edit and a confirmed delete through the services (writes by
+technicians assigned to the job, or any lead or office user), and the live panel that
+sizes what is typed without saving anything."""
 
 from __future__ import annotations
 
@@ -9,6 +10,7 @@ from django.urls import reverse
 
 from circuits.models import Circuit, Device, Termination
 from circuits.sizing import CAUTION
+from shop import roles
 from tests.circuits.factories import make_circuit, make_device, make_terminal
 from tests.factories import make_job, make_user
 
@@ -18,8 +20,8 @@ FOOT_M = 0.3048  # exact by definition (NIST SP 811)
 
 
 @pytest.fixture
-def job():
-    job = make_job()
+def job(technician):
+    job = make_job(technicians=[technician])
     make_device(job, name="Busbar", kind=Device.Kind.BUSBAR)
     make_device(job, name="Fridge")
     return job
@@ -90,7 +92,7 @@ def test_bad_input_shows_errors_beside_fields_and_saves_nothing(technician_clien
     body = response.content.decode()
     assert response.status_code == 200
     assert 'id="id_length_error"' in body
-    assert "Cannot read the length" in body
+    assert "Cannot read the one-way length" in body
     assert 'id="id_conductor_size_error"' in body
     assert not Circuit.objects.exists()
     assert not Termination.objects.exists()
@@ -142,6 +144,53 @@ def test_edit_needs_change_permission_to_post(job):
     client = _no_role_client()
     assert client.get(circuit.get_absolute_url()).status_code == 403
     assert client.post(circuit.get_absolute_url(), _form(job)).status_code == 403
+
+
+def _unassigned_client() -> Client:
+    client = Client()
+    client.force_login(make_user(roles.TECHNICIAN))
+    return client
+
+
+def test_unassigned_technician_cannot_edit_circuit(job):
+    circuit = make_circuit(job, job.devices.get(name="Busbar"), job.devices.get(name="Fridge"))
+    client = _unassigned_client()
+    # Reading the circuit is open to every technician; saving is for those on the job.
+    assert client.get(circuit.get_absolute_url()).status_code == 200
+    response = client.post(circuit.get_absolute_url(), _form(job, tag=circuit.tag, parallel="2"))
+    assert response.status_code == 403
+    body = response.content.decode()
+    assert f"You are not assigned to job {job.number}" in body
+    assert "ask a lead to add you" in body
+    circuit.refresh_from_db()
+    assert circuit.parallel == 1
+
+
+def test_unassigned_technician_cannot_add_circuit(job):
+    client = _unassigned_client()
+    url = reverse("circuit_new", args=[job.number])
+    assert "ask a lead to add you" in client.get(url).content.decode()
+    assert client.post(url, _form(job)).status_code == 403
+    assert not Circuit.objects.exists()
+
+
+def test_the_jobs_lead_writes_to_it_as_well_as_its_technicians(lead, job):
+    # Leads write to any job (shop.work_on_any_job); being the job's lead is enough too.
+    job.lead = lead
+    job.save()
+    client = Client()
+    client.force_login(lead)
+    assert client.post(reverse("circuit_new", args=[job.number]), _form(job)).status_code == 302
+
+
+def test_a_refusal_is_logged(job, caplog):
+    client = _unassigned_client()
+    with caplog.at_level("WARNING", logger="security"):
+        client.post(reverse("circuit_new", args=[job.number]), _form(job))
+    assert any(
+        "event=forbidden" in r.getMessage() and "not assigned" in r.getMessage()
+        for r in caplog.records
+    )
 
 
 def test_a_circuit_of_another_job_is_not_found(technician_client, job):
@@ -246,9 +295,10 @@ def test_only_leads_and_office_delete_circuits(technician_client, lead_client, j
     circuit = make_circuit(job, job.devices.get(name="Busbar"), job.devices.get(name="Fridge"))
     url = reverse("circuit_delete", args=[job.number, circuit.pk])
     assert technician_client.get(url).status_code == 403
-    assert technician_client.post(url).status_code == 403
+    assert technician_client.post(url, {"confirm": "yes"}).status_code == 403
+    assert Circuit.objects.filter(pk=circuit.pk).exists()
     assert lead_client.get(url).status_code == 200
-    response = lead_client.post(url)
+    response = lead_client.post(url, {"confirm": "yes"})
     assert response.status_code == 302
     assert response["Location"] == job.get_absolute_url()
     assert not Circuit.objects.filter(pk=circuit.pk).exists()
@@ -258,10 +308,37 @@ def test_only_leads_and_office_delete_circuits(technician_client, lead_client, j
 def test_office_may_delete_and_anonymous_may_not(anon_client, office_client, job):
     circuit = make_circuit(job, job.devices.get(name="Busbar"), job.devices.get(name="Fridge"))
     url = reverse("circuit_delete", args=[job.number, circuit.pk])
-    assert anon_client.post(url).status_code == 302
+    assert anon_client.post(url, {"confirm": "yes"}).status_code == 302
     assert Circuit.objects.filter(pk=circuit.pk).exists()
-    assert office_client.post(url).status_code == 302
+    assert office_client.post(url, {"confirm": "yes"}).status_code == 302
     assert not Circuit.objects.filter(pk=circuit.pk).exists()
+
+
+def test_delete_circuit_needs_confirmation(lead_client, job, caplog):
+    circuit = make_circuit(
+        job, job.devices.get(name="Busbar"), job.devices.get(name="Fridge"), tag="D-07"
+    )
+    url = reverse("circuit_delete", args=[job.number, circuit.pk])
+    page = lead_client.get(url).content.decode()
+    assert 'name="confirm" value="yes"' in page
+    response = lead_client.post(url)  # an empty POST is not a confirmation
+    assert response.status_code == 200
+    assert "Nothing was deleted" in response.content.decode()
+    assert Circuit.objects.filter(pk=circuit.pk).exists()
+    assert circuit.terminations.count() == 4
+    with caplog.at_level("WARNING", logger="security"):
+        assert lead_client.post(url, {"confirm": "yes"}).status_code == 302
+    assert not Circuit.objects.filter(pk=circuit.pk).exists()
+    logged = [r.getMessage() for r in caplog.records if r.name == "security"]
+    assert any(
+        "event=delete" in m
+        and "record='circuit'" in m
+        and "tag='D-07'" in m
+        and f"job='{job.number}'" in m
+        and "who=lead" in m
+        and "when=" in m
+        for m in logged
+    ), logged
 
 
 @pytest.mark.parametrize(
@@ -281,4 +358,41 @@ def test_preview_answers_nonsense_with_words_not_a_500(technician_client, job, o
     response = _preview(technician_client, job, _form(job, **overrides))
     assert response.status_code == 200
     assert CAUTION in response.content.decode()
+    assert not Circuit.objects.exists()
+
+
+# ---- tampered ids and unit text: words beside the field, never a 500 ----
+
+
+@pytest.mark.parametrize("tampered", ["²", "١", str(10**308), str(2**63)])
+def test_unicode_digit_ids_do_not_crash(technician_client, job, tampered):
+    circuit = make_circuit(job, job.devices.get(name="Busbar"), job.devices.get(name="Fridge"))
+    url = reverse("circuit_preview", args=[job.number]) + f"?circuit={tampered}"
+    data = _form(job, tag=circuit.tag, from_device=tampered)
+    response = technician_client.post(url, data, headers={"HX-Request": "true"})
+    assert response.status_code == 200  # no such circuit: previewed as a new one
+    assert "Live sizing" in response.content.decode()
+    new = technician_client.get(
+        reverse("circuit_new", args=[job.number]), {"from_device": tampered}
+    )
+    assert new.status_code in (200, 403)  # 403: the technician is not on this job
+    assert not Termination.objects.exclude(circuit=circuit).exists()
+
+
+@pytest.mark.parametrize("side", ["from_device", "to_device", "from_terminal", "to_terminal"])
+def test_huge_device_id_is_a_field_error(lead_client, job, side):
+    url = reverse("circuit_new", args=[job.number])
+    response = lead_client.post(url, _form(job, **{side: str(10**308)}))
+    assert response.status_code == 200
+    body = response.content.decode()
+    assert f'id="id_{side}_error"' in body or "Choose a terminal" in body
+    assert not Circuit.objects.exists()
+
+
+@pytest.mark.parametrize("length", ["10 (", "10 m/0", "10 'ft'", "10 m**(9**9**9)", "1e308 m"])
+def test_preview_answers_unit_text_with_words_beside_the_length(technician_client, job, length):
+    response = _preview(technician_client, job, _form(job, length=length))
+    assert response.status_code == 200
+    body = response.content.decode()
+    assert "One-way length" in body and ("do not read" in body or "exponent" in body)
     assert not Circuit.objects.exists()

@@ -9,6 +9,7 @@ from django.test import Client
 from django.urls import reverse
 
 from circuits.models import Termination, TorqueDefault
+from shop import roles
 from tests.circuits.factories import make_circuit, make_device, make_terminal
 from tests.factories import make_job, make_user
 
@@ -16,8 +17,8 @@ pytestmark = pytest.mark.django_db
 
 
 @pytest.fixture
-def termination():
-    job = make_job()
+def termination(technician):
+    job = make_job(technicians=[technician])
     battery = make_device(job, name="House battery", kind="battery")
     make_terminal(battery, name="B+", polarity="pos", stud_size="M8")
     circuit = make_circuit(job, battery, make_device(job, name="Busbar", kind="busbar"))
@@ -99,7 +100,27 @@ def test_the_circuit_page_lists_the_spec_and_its_source(technician_client, termi
     assert _url(termination) in body
 
 
-def test_a_termination_of_another_job_is_not_found(technician_client, termination):
-    other = make_job()
+def test_a_termination_of_another_job_is_not_found(technician_client, technician, termination):
+    other = make_job(technicians=[technician])
     url = reverse("termination_edit", args=[other.number, termination.pk])
     assert technician_client.get(url).status_code == 404
+
+
+def test_unassigned_technician_cannot_edit_a_termination(termination):
+    client = Client()
+    client.force_login(make_user(roles.TECHNICIAN))
+    response = client.post(_url(termination), _post(torque_value="5", torque_source="manual"))
+    assert response.status_code == 403
+    assert "ask a lead to add you" in response.content.decode()
+    termination.refresh_from_db()
+    assert termination.torque_value is None
+
+
+@pytest.mark.parametrize("wanted", ["NaN", "job_list", "https://elsewhere.example/", "//x.example"])
+def test_a_next_that_is_not_a_same_site_path_returns_to_the_circuit(
+    technician_client, termination, wanted
+):
+    data = _post(stud_size="M8")
+    response = technician_client.post(_url(termination) + f"?next={wanted}", data)
+    assert response.status_code == 302
+    assert response["Location"] == termination.circuit.get_absolute_url()

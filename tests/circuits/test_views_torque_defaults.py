@@ -1,5 +1,5 @@
-"""The shop's default torque specs: everyone working on systems reads them, office staff
-edit them."""
+"""The shop's default torque specs are engineering data: everyone working on systems reads
+them, leads edit them; office and technicians only read."""
 
 from __future__ import annotations
 
@@ -62,8 +62,8 @@ def test_technician_reads_the_table_without_edit_links(technician_client):
     assert reverse("torque_default_new") not in body
 
 
-@pytest.mark.parametrize("client_name", ["technician_client", "lead_client"])
-def test_only_office_adds_or_edits(request, client_name):
+@pytest.mark.parametrize("client_name", ["technician_client", "office_client"])
+def test_office_and_technicians_read_torque_specs_only(request, client_name):
     client = request.getfixturevalue(client_name)
     spec = _spec()
     assert client.get(reverse("torque_default_new")).status_code == 403
@@ -72,28 +72,32 @@ def test_only_office_adds_or_edits(request, client_name):
     assert client.post(edit, _post(stud_size="M8", value="99")).status_code == 403
     spec.refresh_from_db()
     assert spec.value == Decimal("10")
+    assert client.get(reverse("torque_defaults")).status_code == 200
+    body = client.get(reverse("torque_defaults")).content.decode()
+    assert reverse("torque_default_new") not in body
 
 
-def test_office_adds_and_edits_a_default(office_client):
-    response = office_client.post(reverse("torque_default_new"), _post())
+def test_lead_adds_and_edits_a_default(lead_client):
+    response = lead_client.post(reverse("torque_default_new"), _post())
     assert response.status_code == 302
     spec = TorqueDefault.objects.get(stud_size="M6", kind="lug")
     edit = reverse("torque_default_edit", args=[spec.pk])
-    assert office_client.get(edit).status_code == 200
-    office_client.post(edit, _post(value="6", unit="N*m"))
+    assert lead_client.get(edit).status_code == 200
+    assert edit in lead_client.get(reverse("torque_defaults")).content.decode()
+    lead_client.post(edit, _post(value="6", unit="N*m"))
     spec.refresh_from_db()
     assert spec.value == Decimal("6")
 
 
-def test_a_second_default_for_the_same_stud_and_kind_is_refused(office_client):
+def test_a_second_default_for_the_same_stud_and_kind_is_refused(lead_client):
     _spec(stud_size="M6")
-    response = office_client.post(reverse("torque_default_new"), _post())
+    response = lead_client.post(reverse("torque_default_new"), _post())
     assert response.status_code == 200
     assert "There is already a default for this stud size and kind." in response.content.decode()
     assert TorqueDefault.objects.count() == 1
 
 
-def test_a_tolerance_out_of_range_is_an_error_beside_it(office_client):
-    response = office_client.post(reverse("torque_default_new"), _post(tolerance_pct="50"))
+def test_a_tolerance_out_of_range_is_an_error_beside_it(lead_client):
+    response = lead_client.post(reverse("torque_default_new"), _post(tolerance_pct="50"))
     assert 'id="id_tolerance_pct_error"' in response.content.decode()
     assert not TorqueDefault.objects.exists()

@@ -79,3 +79,39 @@ def test_failed_edit_leaves_saved_job_unchanged(lead_client):
     assert response.status_code == 200
     job.refresh_from_db()
     assert job.title == "Original"
+
+
+@pytest.mark.parametrize(
+    "tampered",
+    [
+        {"technicians": [str(10**308)]},
+        {"technicians": ["²"]},
+        {"lead": str(10**308)},
+        {"lead": "١"},
+        {"vehicle": str(10**308)},
+        {"vehicle": str(2**63)},
+    ],
+)
+def test_a_huge_or_unicode_digit_id_is_a_field_error_not_a_500(lead_client, tampered):
+    vehicle = make_vehicle()
+    data = {"vehicle": vehicle.pk, "title": "Tampered", "booked_in_on": "2026-11-20", **tampered}
+    response = lead_client.post(reverse("job_new"), data)
+    assert response.status_code == 200
+    (name,) = tampered
+    body = response.content.decode()
+    assert f'id="id_{name}_error"' in body
+    assert "Select a valid choice" in body
+    assert not Job.objects.exists()
+
+
+def test_technicians_id_of_ten_to_the_308_is_refused_on_edit(lead_client):
+    job = make_job(title="Original")
+    response = lead_client.post(
+        reverse("job_edit", args=[job.number]),
+        {"vehicle": job.vehicle.pk, "title": "Renamed", "booked_in_on": "2026-11-20",
+         "technicians": [str(10**308)]},
+    )  # fmt: skip
+    assert response.status_code == 200
+    assert "Select a valid choice" in response.content.decode()
+    job.refresh_from_db()
+    assert job.title == "Original"

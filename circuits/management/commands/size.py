@@ -1,14 +1,16 @@
 """``python manage.py size``: size one circuit from the shell.
 
-Bad input exits with status 2 and one line on stderr (CommandError with
-returncode=2); the engine itself lives in ``circuits.sizing`` and knows no Django.
+Every value is read by the same strict parser as the circuit form and the CSV import
+(circuits.sizing.quantity), with the same ranges (LIMITS). Bad input, and an unknown or
+missing argument, exits with status 2 and one line on stderr, never a traceback; the
+engine itself lives in ``circuits.sizing`` and knows no Django.
 """
 
 from __future__ import annotations
 
 import json
-import math
-from typing import Any
+import sys
+from typing import Any, NoReturn
 
 from django.core.management.base import BaseCommand, CommandError, CommandParser
 
@@ -17,41 +19,38 @@ from circuits.sizing import (
     CircuitInput,
     Report,
     SizingError,
-    parse_length,
+    parse_quantity,
     parse_size,
     size_circuit,
 )
-from circuits.sizing.units import parse_positive
+from circuits.sizing.quantity import MAX_CHARS
 
 _EXAMPLE = 'python manage.py size --volts 12 --amps 20 --length "10 ft" --size 10'
 
 
-def _number(text: str, name: str, unit: str, dimension: str) -> float:
-    """A positive number, bare (``20``) or with a unit (``20 A``)."""
-    try:
-        value = float(text)
-    except ValueError:
-        return parse_positive(text, unit, dimension, name)
-    if not math.isfinite(value) or value <= 0.0:
-        raise SizingError(f"the {name} must be greater than zero (got {text})")
-    return value
+def _one_line(message: str) -> str:
+    """The message with line breaks and other unprintable characters escaped, so an
+    argument holding a newline cannot spread the error over several lines."""
+    return "".join(ch if ch.isprintable() or ch == " " else ascii(ch)[1:-1] for ch in message)
 
 
-def _whole(text: str, name: str) -> int:
-    try:
-        return int(text)
-    except ValueError as exc:
-        raise SizingError(f"{name} must be a whole number (got {text!r})") from exc
+def _read(text: str, *, kind: str, field: str, what: str) -> float:
+    """A value with or without its unit ("20", "20 A"), within LIMITS[field]."""
+    return parse_quantity(text, kind=kind, field=field, what=what).value
 
 
-def _float(text: str, name: str) -> float:
-    try:
-        value = float(text)
-    except ValueError as exc:
-        raise SizingError(f"{name} must be a number (got {text!r})") from exc
-    if not math.isfinite(value):
-        raise SizingError(f"{name} must be a finite number (got {text!r})")
-    return value
+def _optional(text: str | None, *, kind: str, field: str, what: str) -> float | None:
+    return None if text is None else _read(text, kind=kind, field=field, what=what)
+
+
+def _size(text: str | None):
+    if text is None:
+        return None
+    if len(text) > MAX_CHARS:  # before any other work, as for every other value
+        raise SizingError(
+            f"the conductor size is {len(text)} characters long; write at most {MAX_CHARS}"
+        )
+    return parse_size(text)
 
 
 class Command(BaseCommand):
@@ -62,6 +61,19 @@ class Command(BaseCommand):
         "Size one circuit: ampacity after every factor, round-trip voltage drop and "
         f"protection; recommends a size when --size is not given. Example: {_EXAMPLE}"
     )
+
+    def create_parser(self, prog_name: str, subcommand: str, **kwargs: Any) -> CommandParser:
+        parser = super().create_parser(prog_name, subcommand, **kwargs)
+
+        def error(message: str) -> NoReturn:
+            # argparse would print the nine-line usage first; one line says what is wrong.
+            if parser.called_from_command_line:
+                self.stderr.write(f"size: {_one_line(message)} (see python manage.py size --help)")
+                sys.exit(2)
+            raise CommandError(f"Error: {_one_line(message)}", returncode=2)
+
+        parser.error = error  # type: ignore[method-assign]
+        return parser
 
     def add_arguments(self, parser: CommandParser) -> None:
         parser.add_argument("--volts", required=True, help="nominal system voltage, e.g. 12")
@@ -96,7 +108,7 @@ class Command(BaseCommand):
             inp = self._input(options)
             report = size_circuit(inp)
         except ValueError as exc:  # SizingError, UnitError, SizeNotationError
-            raise CommandError(str(exc), returncode=2) from exc
+            raise CommandError(_one_line(str(exc)), returncode=2) from exc
         if options["json"]:
             self.stdout.write(json.dumps(report.to_dict(), ensure_ascii=False, indent=2))
         else:
@@ -105,31 +117,37 @@ class Command(BaseCommand):
     @staticmethod
     def _input(options: dict[str, Any]) -> CircuitInput:
         size_text = options["size"]
+        ac = options["ac"]
+        volts_field = "ac_voltage" if ac else "dc_voltage"
         return CircuitInput(
-            system_voltage_v=_number(options["volts"], "voltage", "volt", "[electric_potential]"),
-            current_a=_number(options["amps"], "current", "ampere", "[current]"),
-            length_m=parse_length(options["length"]),
-            size=parse_size(size_text) if size_text is not None else None,
+            system_voltage_v=_read(options["volts"], kind="voltage", field=volts_field,
+                                   what="voltage"),
+            current_a=_read(options["amps"], kind="current", field="current", what="current"),
+            length_m=_read(options["length"], kind="length", field="length", what="length"),
+            size=_size(size_text),
             size_text=size_text,
-            insulation_c=_whole(options["insulation"], "the insulation rating"),
+            insulation_c=int(_read(options["insulation"], kind="temperature",
+                                   field="insulation", what="insulation rating")),
             engine_space=options["engine_space"],
-            bundled=_whole(options["bundled"], "--bundled"),
-            parallel=_whole(options["parallel"], "--parallel"),
+            bundled=int(_read(options["bundled"], kind="number", field="bundled",
+                              what="--bundled count")),
+            parallel=int(_read(options["parallel"], kind="number", field="parallel",
+                               what="--parallel count")),
             critical=options["critical"],
-            drop_limit_pct=_float(options["drop"], "--drop") if options["drop"] else None,
+            drop_limit_pct=_optional(options["drop"], kind="percent", field="drop",
+                                     what="voltage-drop limit"),
             continuous=options["continuous"],
-            protection_a=(
-                _number(options["protection"], "protection rating", "ampere", "[current]")
-                if options["protection"] is not None
-                else None
-            ),
-            conductor_temp_c=_float(options["temp"], "--temp") if options["temp"] else None,
+            protection_a=_optional(options["protection"], kind="current", field="protection",
+                                   what="protection rating"),
+            conductor_temp_c=_optional(options["temp"], kind="temperature",
+                                       field="temperature", what="conductor temperature"),
             tinned=options["tinned"],
-            ac=options["ac"],
-            ambient_c=_float(options["ambient"], "--ambient") if options["ambient"] else None,
+            ac=ac,
+            ambient_c=_optional(options["ambient"], kind="temperature", field="temperature",
+                                what="ambient temperature"),
             sheathed=options["sheathed"],
             metric=options["metric"],
-        )
+        )  # fmt: skip
 
 
 def _summary(report: Report) -> str:

@@ -1,3 +1,0 @@
-"""Stages, checklists, torque records, sign-offs and the wiring record (later issues)."""
-
-from __future__ import annotations
