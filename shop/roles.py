@@ -90,6 +90,17 @@ _RECORD_INSPECTIONS = [
     "inspections.add_thermalreading",
 ]
 _WRENCHES = ["inspections.add_torquewrench", "inspections.change_torquewrench"]
+# Checklists, sign-offs and gates (mirrored by inspections/0006_gate_roles): technicians
+# and leads mark items and sign their stages; leads alone approve, reopen and waive a hot
+# connection; the office keeps the shop's own checklist and signs nothing.
+_VIEW_GATES = [
+    "inspections.view_checklistmark",
+    "inspections.view_shopchecklistitem",
+    "inspections.view_signoff",
+    "inspections.view_thermalwaiver",
+]
+_WORK = ["inspections.add_checklistmark", "inspections.sign_stage"]
+_REVIEW = ["inspections.approve_job", "inspections.reopen_job", "inspections.waive_thermal"]
 
 # Mirrored, frozen, by the data migrations shop/0003_role_review (shop and circuits) and
 # inspections/0003_roles (inspections).
@@ -100,6 +111,8 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         *_EDIT_SYSTEM,
         *_VIEW_INSPECTIONS,
         *_RECORD_INSPECTIONS,
+        *_VIEW_GATES,
+        *_WORK,
     ],
     LEAD: [
         *_VIEW_SHOP,
@@ -114,6 +127,9 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         "circuits.delete_waiver",
         *_VIEW_INSPECTIONS,
         *_RECORD_INSPECTIONS,
+        *_VIEW_GATES,
+        *_WORK,
+        *_REVIEW,
     ],
     OFFICE: [
         *_VIEW_SHOP,
@@ -129,6 +145,8 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         "shop.manage_staff",
         *_VIEW_INSPECTIONS,
         *_WRENCHES,
+        *_VIEW_GATES,
+        "inspections.manage_checklist",
     ],
 }
 
