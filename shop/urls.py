@@ -39,6 +39,7 @@ urlpatterns = [
     path("vehicles/<int:pk>/", records.vehicle_detail, name="vehicle_detail"),
     path("vehicles/<int:pk>/edit/", records.vehicle_edit, name="vehicle_edit"),
     path("", include("circuits.urls")),
+    path("", include("inspections.urls")),
     path("admin/", admin.site.urls),
 ]
 

@@ -16,6 +16,8 @@ with their errors (200) and confirmation steps ask again.
 
 from __future__ import annotations
 
+import importlib
+
 from django.contrib.auth import get_user_model
 from django.contrib.contenttypes.models import ContentType
 from django.test import Client, TestCase
@@ -37,6 +39,14 @@ from tests.inspections.factories import (
 )
 
 PERSONAS = ("anon", "tech", "stranger", "lead", "office", "super")
+
+# Rows of the inspections pages, one module per views module (tests/inspections/matrix/):
+# each has ROWS (name -> (GET, POST) as below) and kwargs(world, name) -> the URL's kwargs,
+# where world is the PermissionMatrix test (its job, termination, reading, stage, ...).
+FEATURE_ROWS = tuple(
+    importlib.import_module(f"tests.inspections.matrix.{feature}")
+    for feature in ("torque", "heat", "checklists", "office", "signing", "review")
+)
 
 # name: (GET outcomes, POST outcomes), one per persona in PERSONAS order.
 APP = {
@@ -87,6 +97,9 @@ APP = {
     "circuit_csv_export": ("login 200 200 200 200 200", "login 405 405 405 405 405"),
     "circuit_csv_import": ("login 200 403 200 200 200", "login 200 403 200 200 200"),
 }
+for _feature in FEATURE_ROWS:
+    assert not set(_feature.ROWS) & set(APP), _feature.__name__
+    APP.update(_feature.ROWS)
 
 # The admin: only office staff and superusers get past its sign-in. What office staff may
 # do there, per model ("view", "add", "change", "delete"); superusers may do all that the
@@ -322,6 +335,9 @@ class PermissionMatrix(TestCase):
             return reverse(key, args=[ContentType.objects.get_for_model(owner).pk, owner.pk])
         if key == "password_reset_confirm":
             return reverse(key, kwargs={"uidb64": "MQ", "token": "set-password"})
+        for feature in FEATURE_ROWS:
+            if key in feature.ROWS:
+                return reverse(key, kwargs=feature.kwargs(self, key))
         kwargs: dict[str, object] = {}
         if "<str:number>" in route:
             kwargs["number"] = job.number

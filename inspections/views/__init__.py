@@ -1,0 +1,1 @@
+"""Pages of the inspections app, one module per feature; each declares its urlpatterns."""

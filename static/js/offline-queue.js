@@ -1,0 +1,1 @@
+/* The offline queue of torque readings: built in issue 8. */
