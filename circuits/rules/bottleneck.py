@@ -32,8 +32,8 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
+from circuits.findings import CircuitSizing, SystemFinding
 from circuits.models import Circuit
-from circuits.system import CircuitSizing, SystemFinding
 
 from .common import (
     BLOCKING,

@@ -39,8 +39,8 @@ Across the system:
 
 from __future__ import annotations
 
+from circuits.findings import SYSTEM_SUBJECT, SystemFinding
 from circuits.models import Circuit, Colour
-from circuits.system import SYSTEM_SUBJECT, SystemFinding
 
 from .common import BLOCKING, NOTE, WARNING, describe, device_key, finding
 

@@ -12,9 +12,9 @@ from __future__ import annotations
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 
+from circuits.findings import CircuitSizing, SystemFinding, size_one
 from circuits.models import Circuit, Device
 from circuits.sizing.findings import BLOCKING, NOTE, WARNING
-from circuits.system import CircuitSizing, SystemFinding, size_one
 
 __all__ = [
     "BLOCKING",

@@ -16,8 +16,8 @@
 
 from __future__ import annotations
 
+from circuits.findings import SystemFinding
 from circuits.models import Circuit
-from circuits.system import SystemFinding
 
 from .common import BLOCKING, NOTE, WARNING, describe, finding
 

@@ -16,8 +16,8 @@ Source: common practice (trade size notation: 4/0 = 0000 = 4-0 = four aught).
 
 from __future__ import annotations
 
+from circuits.findings import SystemFinding
 from circuits.sizing import is_bare_number
-from circuits.system import SystemFinding
 
 from .common import BLOCKING, battery_banks, finding, installed_size
 

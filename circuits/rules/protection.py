@@ -34,8 +34,8 @@ source such as a two-string solar array).
 
 from __future__ import annotations
 
+from circuits.findings import SystemFinding
 from circuits.models import Circuit, Device
-from circuits.system import SystemFinding
 
 from .common import BLOCKING, EPS, WARNING, describe, device_key, finding
 

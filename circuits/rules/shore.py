@@ -19,8 +19,8 @@ circuit that ends at it.
 
 from __future__ import annotations
 
+from circuits.findings import SystemFinding
 from circuits.models import Circuit, Device
-from circuits.system import SystemFinding
 
 from .common import (
     BLOCKING,

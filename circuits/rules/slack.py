@@ -17,8 +17,8 @@ Source: common practice; ABYC E-11 conductor support and strain relief (from mem
 
 from __future__ import annotations
 
+from circuits.findings import SystemFinding
 from circuits.models import Mounting
-from circuits.system import SystemFinding
 
 from .common import NOTE, WARNING, finding
 

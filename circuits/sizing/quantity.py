@@ -29,6 +29,7 @@ from decimal import Decimal
 
 from .errors import UnitError
 from .limits import LIMITS, Limit, check_limit
+from .registry import ureg
 
 __all__ = [
     "KINDS",
@@ -145,10 +146,8 @@ def units_of(kind: str) -> str:
 
 @functools.cache
 def _tables() -> dict[str, dict[str, _Unit]]:
-    # Imported here, not at the top: units.py builds its parsers on this module, and the
-    # registry must be the one defined there (pint refuses to mix registries).
-    from .units import ureg
-
+    # Built on first use: the unit objects of the project's one registry (pint refuses
+    # to mix registries).
     objects = {
         "m": ureg.meter,
         "mm": ureg.millimeter,
@@ -398,8 +397,6 @@ def _to_si(magnitude: float, spec: _Unit | None, kind: str) -> float:
         return magnitude
     target = _tables()[kind][_unit_key(_SI_KEY[kind])].unit
     if kind == "temperature":
-        from .units import ureg
-
         # Offset units cannot be multiplied (pint refuses 10 * degC); a Quantity built from
         # the number and the unit object still never reads the text.
         return float(ureg.Quantity(magnitude, spec.unit).to(target).magnitude)

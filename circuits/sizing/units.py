@@ -14,6 +14,7 @@ import pint
 
 from .errors import UnitError
 from .quantity import from_number, parse_quantity, registry_unit
+from .registry import Q_, ureg
 
 __all__ = [
     "Q_",
@@ -25,13 +26,8 @@ __all__ = [
     "ureg",
 ]
 
-ureg: pint.UnitRegistry = pint.UnitRegistry()
-Q_ = ureg.Quantity
-
-# pint's default definitions already give lbf, kgf (force_kilogram) and ozf
-# (force_ounce) with the exact factors NIST SP 811 uses (lb = 0.45359237 kg,
-# g0 = 9.80665 m/s^2, in = 0.0254 m), so torque needs no new definitions; the ways a
-# torque unit is written on a spec sheet or a wrench scale are listed in quantity.py.
+# The registry itself is in registry.py (with why torque needs no new definitions); the
+# ways a torque unit is written on a spec sheet or a wrench scale are listed in quantity.py.
 
 # Kind -> (its SI unit as quantity.py names it, the pint dimension, the SI unit's name).
 _SI = {
