@@ -47,7 +47,7 @@ def test_json_output_recommends_and_evaluates() -> None:
 
 def test_json_findings_have_code_severity_message_and_source() -> None:
     done = run("--volts", "12", "--amps", "400", "--length", "1 m", "--size", "4", "--json")
-    assert done.returncode == 0, done.stderr
+    assert done.returncode == 1, done.stderr  # a blocking finding: see the exit-status tests
     findings = json.loads(done.stdout)["findings"]
     aught = next(f for f in findings if f["code"] == "SIZE_NOTATION_AUGHT")
     assert aught["severity"] == "blocking" and "4/0" in aught["message"]
@@ -67,7 +67,9 @@ def test_all_options_are_accepted_together() -> None:
         "--insulation", "90", "--engine-space", "--bundled", "4", "--parallel", "1",
         "--drop", "5", "--continuous", "--protection", "20", "--temp", "60", "--ac", "--json",
     )  # fmt: skip
-    assert done.returncode == 0, done.stderr
+    # Blocking, so exit status 1: four bundled in an engine space leave 12 AWG below the
+    # 20 A that 125 % of a 16 A continuous load asks (NEC 2023 Table 310.16, 210.19(A)).
+    assert done.returncode == 1, done.stderr
     data = json.loads(done.stdout)
     assert data["size"] == "12 AWG" and data["drop_limit_pct"] == 5
     assert data["conductor_temp_c"] == 60
@@ -179,3 +181,36 @@ def test_a_newline_in_an_argument_keeps_the_error_on_one_line(args: list[str]) -
     assert done.returncode == 2
     assert len(done.stderr.strip().splitlines()) == 1, done.stderr
     assert "\\n" in done.stderr or "\\r" in done.stderr
+
+
+# Exit status: 0 clean, 1 at least one blocking finding, 2 bad input (documented in --help).
+
+
+def test_exit_status_is_0_when_nothing_blocks() -> None:
+    # 10 AWG at 20 A over 10 ft at 12 V: 60 A ampacity (33 CFR 183.425 Table 5) and about
+    # 2.7 % drop (NEC Chapter 9 Table 8): nothing blocking.
+    done = run("--volts", "12", "--amps", "20", "--length", "10 ft", "--size", "10", "--json")
+    assert done.returncode == 0, done.stderr
+    assert all(f["severity"] != "blocking" for f in json.loads(done.stdout)["findings"])
+
+
+def test_exit_status_is_1_when_a_finding_blocks_and_the_report_is_still_printed() -> None:
+    # 400 A on a bare "4": 4 AWG carries far less than 400 A (33 CFR 183.425 Table 5), and
+    # only 4/0 would: the notation rule blocks.
+    done = run("--volts", "12", "--amps", "400", "--length", "1 m", "--size", "4")
+    assert done.returncode == 1
+    assert "[blocking]" in done.stdout and done.stdout.strip().splitlines()[-1] == CAUTION
+    assert done.stderr == ""
+
+
+def test_exit_status_is_2_for_bad_input_with_one_line_on_stderr() -> None:
+    done = run("--volts", "12", "--amps", "twenty", "--length", "10 ft")
+    assert done.returncode == 2
+    assert len(done.stderr.strip().splitlines()) == 1 and done.stdout == ""
+
+
+def test_help_documents_the_exit_status() -> None:
+    done = run("--help")
+    assert done.returncode == 0
+    text = " ".join(done.stdout.split())
+    assert "Exit status: 0 when no finding is blocking, 1 when at least one finding" in text

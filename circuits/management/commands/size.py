@@ -4,6 +4,9 @@ Every value is read by the same strict parser as the circuit form and the CSV im
 (circuits.sizing.quantity), with the same ranges (LIMITS). Bad input, and an unknown or
 missing argument, exits with status 2 and one line on stderr, never a traceback; the
 engine itself lives in ``circuits.sizing`` and knows no Django.
+
+Exit status, for scripts that size a schedule: 0 when no finding is blocking, 1 when at
+least one is (the report is printed all the same), 2 for bad input.
 """
 
 from __future__ import annotations
@@ -26,6 +29,11 @@ from circuits.sizing import (
 from circuits.sizing.quantity import MAX_CHARS
 
 _EXAMPLE = 'python manage.py size --volts 12 --amps 20 --length "10 ft" --size 10'
+EXIT_CLEAN, EXIT_BLOCKING, EXIT_BAD_INPUT = 0, 1, 2
+_EPILOG = (
+    "Exit status: 0 when no finding is blocking, 1 when at least one finding is blocking "
+    "(the report is printed all the same), 2 for bad input (one line on stderr)."
+)
 
 
 def _one_line(message: str) -> str:
@@ -69,11 +77,20 @@ class Command(BaseCommand):
             # argparse would print the nine-line usage first; one line says what is wrong.
             if parser.called_from_command_line:
                 self.stderr.write(f"size: {_one_line(message)} (see python manage.py size --help)")
-                sys.exit(2)
-            raise CommandError(f"Error: {_one_line(message)}", returncode=2)
+                sys.exit(EXIT_BAD_INPUT)
+            raise CommandError(f"Error: {_one_line(message)}", returncode=EXIT_BAD_INPUT)
 
         parser.error = error  # type: ignore[method-assign]
+        parser.epilog = _EPILOG
         return parser
+
+    def run_from_argv(self, argv: list[str]) -> None:
+        # From the shell the verdict is the exit status; call_command() callers read
+        # `verdict` (and the printed report) instead of catching an exit.
+        self.verdict = EXIT_CLEAN
+        super().run_from_argv(argv)
+        if self.verdict != EXIT_CLEAN:
+            sys.exit(self.verdict)
 
     def add_arguments(self, parser: CommandParser) -> None:
         parser.add_argument("--volts", required=True, help="nominal system voltage, e.g. 12")
@@ -108,7 +125,9 @@ class Command(BaseCommand):
             inp = self._input(options)
             report = size_circuit(inp)
         except ValueError as exc:  # SizingError, UnitError, SizeNotationError
-            raise CommandError(_one_line(str(exc)), returncode=2) from exc
+            raise CommandError(_one_line(str(exc)), returncode=EXIT_BAD_INPUT) from exc
+        blocking = any(f.severity == "blocking" for f in report.findings)
+        self.verdict = EXIT_BLOCKING if blocking else EXIT_CLEAN
         if options["json"]:
             self.stdout.write(json.dumps(report.to_dict(), ensure_ascii=False, indent=2))
         else:
