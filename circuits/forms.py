@@ -15,7 +15,8 @@ from decimal import Decimal
 from django import forms
 from django.core.exceptions import ValidationError
 
-from circuits.entry import check_entry, number_entry, parse_length_entry, strict_field
+from circuits.entry import check_entry, number_entry, parse_length_entry
+from circuits.form_fields import strict_field
 from circuits.models import (
     Circuit,
     Device,
