@@ -81,6 +81,7 @@ INSTALLED_APPS = [
     "shop",
     "circuits",
     "inspections",
+    "wiring",
 ]
 
 MIDDLEWARE = [

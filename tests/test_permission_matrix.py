@@ -40,12 +40,19 @@ from tests.inspections.factories import (
 
 PERSONAS = ("anon", "tech", "stranger", "lead", "office", "super")
 
-# Rows of the inspections pages, one module per views module (tests/inspections/matrix/):
+# Rows of the inspections and wiring-record pages, one module per views module
+# (tests/inspections/matrix/, tests/wiring/matrix/):
 # each has ROWS (name -> (GET, POST) as below) and kwargs(world, name) -> the URL's kwargs,
 # where world is the PermissionMatrix test (its job, termination, reading, stage, ...).
 FEATURE_ROWS = tuple(
-    importlib.import_module(f"tests.inspections.matrix.{feature}")
-    for feature in ("torque", "heat", "checklists", "office", "signing", "review")
+    importlib.import_module(module)
+    for module in (
+        *(
+            f"tests.inspections.matrix.{feature}"
+            for feature in ("torque", "heat", "checklists", "office", "signing", "review")
+        ),
+        *(f"tests.wiring.matrix.{feature}" for feature in ("record", "owner", "verify")),
+    )
 )
 
 # name: (GET outcomes, POST outcomes), one per persona in PERSONAS order.

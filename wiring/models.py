@@ -1,0 +1,3 @@
+"""The wiring record's revisions and the owner's private links (being built)."""
+
+from __future__ import annotations

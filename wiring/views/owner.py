@@ -1,0 +1,5 @@
+"""Wiring record pages: owner (being built)."""
+
+from __future__ import annotations
+
+urlpatterns: list = []
