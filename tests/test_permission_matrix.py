@@ -51,7 +51,10 @@ FEATURE_ROWS = tuple(
             f"tests.inspections.matrix.{feature}"
             for feature in ("torque", "heat", "checklists", "office", "signing", "review")
         ),
-        *(f"tests.wiring.matrix.{feature}" for feature in ("record", "owner", "verify")),
+        *(
+            f"tests.wiring.matrix.{feature}"
+            for feature in ("record", "revisions", "owner", "verify")
+        ),
     )
 )
 

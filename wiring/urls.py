@@ -2,6 +2,11 @@
 
 from __future__ import annotations
 
-from wiring.views import owner, record, verify
+from wiring.views import owner, record, revisions, verify
 
-urlpatterns = [*record.urlpatterns, *owner.urlpatterns, *verify.urlpatterns]
+urlpatterns = [
+    *record.urlpatterns,
+    *revisions.urlpatterns,
+    *owner.urlpatterns,
+    *verify.urlpatterns,
+]

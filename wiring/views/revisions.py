@@ -1,0 +1,5 @@
+"""Wiring record pages: revisions (being built)."""
+
+from __future__ import annotations
+
+urlpatterns: list = []
