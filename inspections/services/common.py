@@ -125,6 +125,9 @@ def clean_text(value: object, *, field: str, what: str, limit: int, errors: Erro
     text = str(value or "").strip()
     if len(text) > limit:
         add_error(errors, field, f"Keep the {what} under {limit} characters (it has {len(text)}).")
+    elif "\x00" in text:
+        # PostgreSQL refuses NUL in text; say so beside the field instead of failing the write.
+        add_error(errors, field, f"The {what} holds a NUL character; type it again.")
     return text
 
 
