@@ -1,16 +1,52 @@
-"""Writes to a job's electrical system: circuits with their terminations, and waivers."""
+"""Writes to a job's electrical system: circuits with their terminations, devices and
+their terminals, termination specs, and waivers.
+
+Every write here is refused while the job is approved (locked: inspections.services.
+job_is_locked) with the lock's message, and none of them removes or moves a conductor end
+that carries readings: the readings would no longer describe the connection they were
+made on."""
 
 from __future__ import annotations
 
-from django.core.exceptions import PermissionDenied, ValidationError
+from django.core.exceptions import NON_FIELD_ERRORS, PermissionDenied, ValidationError
 from django.db import IntegrityError, transaction
 from django.db.models import ProtectedError
 from django.utils import timezone
 
 from circuits.models import Circuit, Termination, TorqueDefault, Waiver
+from inspections.models import ThermalReading, TorqueRecord
+from inspections.services.status import job_is_locked, lock_message
 from shop.models import ShopProfile
 
 MIN_WAIVER_REASON = 15
+
+
+def check_unlocked(job) -> None:
+    """Refuse any write to an approved job's system, saying when it was approved and who
+    may reopen it. Call inside the write's transaction."""
+    job_id = getattr(job, "pk", job)
+    if job_is_locked(job_id):
+        raise refusal(lock_message(job_id))
+
+
+def refusal(message: str) -> ValidationError:
+    """A refusal about the record as a whole, keyed so that forms show it above their fields
+    and the CSV import lists it on the row that asked (both read `message_dict`)."""
+    return ValidationError({NON_FIELD_ERRORS: [message]})
+
+
+def _with_readings(terminations) -> set[int]:
+    """Ids of the terminations that carry torque or temperature readings."""
+    ids = [t.pk for t in terminations if t.pk]
+    if not ids:
+        return set()
+    torqued = TorqueRecord.objects.filter(termination_id__in=ids).values_list(
+        "termination_id", flat=True
+    )
+    heated = ThermalReading.objects.filter(termination_id__in=ids).values_list(
+        "termination_id", flat=True
+    )
+    return set(torqued) | set(heated)
 
 
 def _expected_ends(circuit: Circuit) -> set[tuple[str, str, int]]:
@@ -59,10 +95,30 @@ def termination_spec_fill(termination: Termination) -> None:
         termination.torque_source_note = default.source
 
 
-def _repoint(circuit: Circuit, termination: Termination) -> bool:
+def termination_update(*, termination: Termination, refill: bool = False) -> Termination:
+    """Save a termination's kind, stud size and torque spec as edited (the form has put
+    them on the instance); `refill` takes the spec afresh from the manual or the shop
+    default. Refused while the job is locked. A spec change never rewrites a reading: each
+    reading keeps a copy of the spec it was judged against."""
+    with transaction.atomic():
+        check_unlocked(termination.circuit.job_id)
+        if refill:
+            termination.torque_source = Termination.SpecSource.NONE
+            termination.torque_source_note = ""
+            termination_spec_fill(termination)
+        termination.full_clean()
+        termination.save()
+    return termination
+
+
+def _repoint(circuit: Circuit, termination: Termination, *, has_readings: bool = False) -> bool:
     """Move a kept end to the terminal it now lands on, when the circuit's device or chosen
     terminal changed; its torque spec described the old stud, so it is filled afresh.
-    Returns True when the termination changed."""
+    Returns True when the termination changed.
+
+    An end that carries readings is not moved to another device or terminal (a
+    ValidationError says which): its readings were made on the old stud. Giving such an
+    end the terminal it had none of is allowed (nothing it was read on changes)."""
     end, polarity = termination.end, termination.polarity
     device = circuit.from_device if end == Termination.End.FROM else circuit.to_device
     chosen = circuit.from_terminal if end == Termination.End.FROM else circuit.to_terminal
@@ -75,6 +131,12 @@ def _repoint(circuit: Circuit, termination: Termination) -> bool:
     )
     if not (stale or unset or rechosen):
         return False
+    if has_readings and current is not None and wanted != current:
+        raise refusal(
+            f"{termination} carries torque or temperature readings made on"
+            f" {current.device.name}, terminal {current.name}; it cannot move to another"
+            " device or terminal. Keep its device and terminal, or ask a lead."
+        )
     termination.terminal = wanted
     termination.stud_size = ""
     termination.torque_value = None
@@ -87,7 +149,9 @@ def _repoint(circuit: Circuit, termination: Termination) -> bool:
 def terminations_sync(*, circuit: Circuit) -> list[Termination]:
     """Make the circuit's terminations match its conductors: create the missing ends (with
     their torque spec filled), remove ends the circuit no longer has, and move kept ends
-    whose device or chosen terminal changed."""
+    whose device or chosen terminal changed. Refused while the job is locked, and for a
+    change that would remove or move ends carrying readings (nothing is saved)."""
+    check_unlocked(circuit.job_id)
     expected = _expected_ends(circuit)
     existing = {
         (t.end, t.polarity, t.conductor_index): t
@@ -100,12 +164,13 @@ def terminations_sync(*, circuit: Circuit) -> list[Termination]:
                 Termination.objects.filter(pk__in=surplus).delete()
         except ProtectedError as exc:
             kept = sorted({str(obj) for obj in exc.protected_objects})[:3]
-            raise ValidationError(
+            raise refusal(
                 "This change would remove conductor ends that already carry torque readings "
                 f"({'; '.join(kept)}); keep the conductors and parallel count, or ask a lead."
             ) from exc
+    read = _with_readings(existing.values())
     for key, termination in existing.items():
-        if key in expected and _repoint(circuit, termination):
+        if key in expected and _repoint(circuit, termination, has_readings=termination.pk in read):
             termination.full_clean()
             termination.save()
     created = []
@@ -125,8 +190,22 @@ def terminations_sync(*, circuit: Circuit) -> list[Termination]:
 
 
 def device_save(*, form, terminals):
-    """Save a bound, valid device form and its terminal formset together or not at all."""
+    """Save a bound, valid device form and its terminal formset together or not at all.
+    Refused while the job is locked, and when a terminal to be removed has conductor ends
+    with readings on it (they would lose the stud they were read on)."""
     with transaction.atomic():
+        check_unlocked(form.instance.job_id)
+        removed = [f.instance for f in terminals.deleted_forms if f.instance.pk]
+        if removed:
+            landing = Termination.objects.filter(terminal__in=removed).select_related("terminal")
+            read = _with_readings(landing)
+            kept = sorted({t.terminal.name for t in landing if t.pk in read})
+            if kept:
+                raise refusal(
+                    f"Terminal{'s' if len(kept) > 1 else ''} {', '.join(kept)} "
+                    f"{'have' if len(kept) > 1 else 'has'} conductor ends with torque or "
+                    "temperature readings; keep it. Nothing was saved."
+                )
         device = form.save()
         terminals.instance = device
         terminals.save()
@@ -135,6 +214,7 @@ def device_save(*, form, terminals):
 
 def circuit_create(*, job, **fields) -> Circuit:
     with transaction.atomic():
+        check_unlocked(job)
         circuit = Circuit(job=job, **fields)
         circuit.full_clean()
         circuit.save()
@@ -144,6 +224,7 @@ def circuit_create(*, job, **fields) -> Circuit:
 
 def circuit_update(*, circuit: Circuit, **fields) -> Circuit:
     with transaction.atomic():
+        check_unlocked(circuit.job_id)
         # Read the stored tag: a bound model form has already put the new one on the instance.
         old_tag = Circuit.objects.filter(pk=circuit.pk).values_list("tag", flat=True).get()
         for name, value in fields.items():
@@ -174,6 +255,7 @@ def waiver_create(*, job, code: str, subject: str, reason: str, lead) -> Waiver:
             {"reason": f"Explain the waiver in at least {MIN_WAIVER_REASON} characters."}
         )
     with transaction.atomic():
+        check_unlocked(job)
         report = job_system_report(job)
         finding = next(
             (f for f in report.all_findings if (f.code, f.subject) == (code, subject)), None
@@ -214,6 +296,7 @@ def waiver_withdraw(*, waiver: Waiver, user, reason: str = "") -> Waiver:
     if not user.has_perm("circuits.delete_waiver"):
         raise PermissionDenied("Only a lead can withdraw a waiver.")
     with transaction.atomic():
+        check_unlocked(waiver.job_id)
         withdrawn = (
             Waiver.objects.active()
             .filter(pk=waiver.pk)
@@ -238,6 +321,7 @@ def circuit_delete(*, circuit: Circuit, user) -> int:
     if not user.has_perm("circuits.delete_circuit"):
         raise PermissionDenied("Removing a circuit is lead or office work; ask a lead.")
     with transaction.atomic():
+        check_unlocked(circuit.job_id)
         count = Termination.objects.filter(circuit=circuit).count()
         # A waiver names its finding by tag: one left in force would pass to the next
         # circuit given this tag. It is withdrawn, and kept, with the deletion as reason.
@@ -263,6 +347,7 @@ def device_delete(*, device, user) -> None:
     if not user.has_perm("circuits.delete_device"):
         raise PermissionDenied("Removing a device is lead or office work; ask a lead.")
     with transaction.atomic():
+        check_unlocked(device.job_id)
         # Locked, so a circuit saved at the same moment cannot land on a deleted device.
         locked = Device.objects.select_for_update().get(pk=device.pk)
         in_use = device_circuit_tags(locked)

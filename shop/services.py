@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import smtplib
+import warnings
 from collections.abc import Iterable
 
 from django.contrib.auth import get_user_model
@@ -13,6 +14,7 @@ from django.core.validators import validate_email
 from django.db import transaction
 from django.utils import timezone
 
+from inspections.services import job_is_locked, lock_message, stages_ensure
 from shop import roles
 from shop.models import Job, JobSequence, ShopProfile
 from shop.security import security_log
@@ -29,8 +31,33 @@ def job_number_next(*, prefix: str, year: int) -> str:
     return f"{prefix}-{year}-{seq.last:04d}"
 
 
+# Set by the stages alone (inspections.services.job_status_sync), never by hand.
+STAGE_DRIVEN_FIELDS = frozenset({"status", "handed_over_on"})
+
+
+def _refuse_stage_driven(fields: dict) -> None:
+    hand_set = sorted(STAGE_DRIVEN_FIELDS & fields.keys())
+    if hand_set:
+        raise TypeError(
+            f"{', '.join(hand_set)} follow the job's stages (inspections.services."
+            "job_status_sync) and are never set by hand"
+        )
+
+
 def job_create(*, technicians: Iterable = (), **fields) -> Job:
-    """Create a job with a fresh number. `fields` are Job model fields (vehicle, title, ...)."""
+    """Create a job with a fresh number and its four stages (first install open, so the
+    status is "First install"). `fields` are Job model fields (vehicle, title, ...).
+
+    The status is the stages' to set: one passed in is dropped with a warning (the stages
+    would overwrite it in this same transaction anyway)."""
+    hand_set = sorted(STAGE_DRIVEN_FIELDS & fields.keys())
+    if hand_set:
+        warnings.warn(
+            f"job_create ignores {', '.join(hand_set)}: set by the job's stages",
+            stacklevel=2,
+        )
+        for name in hand_set:
+            fields.pop(name)
     with transaction.atomic():
         job = Job(**fields)
         job.full_clean(exclude=["number"])
@@ -38,15 +65,23 @@ def job_create(*, technicians: Iterable = (), **fields) -> Job:
         job.number = job_number_next(prefix=prefix, year=timezone.localdate().year)
         job.save()
         job.technicians.set(technicians)
+        stages_ensure(job=job)
     return job
 
 
 def job_update(*, job: Job, technicians: Iterable | None = None, **fields) -> Job:
+    """Change a job's booking facts (title, people, dates). Refused while the job is
+    approved (locked): what was approved and handed over stays as it was."""
+    _refuse_stage_driven(fields)
     with transaction.atomic():
+        if job_is_locked(job):
+            raise ValidationError(lock_message(job))
         for name, value in fields.items():
             setattr(job, name, value)
         job.full_clean()
-        job.save()
+        # Only the edited fields: the status is written by the stages, possibly at this
+        # very moment on another tablet, and a stale copy must not overwrite it.
+        job.save(update_fields=[*fields.keys(), "updated_at"])
         if technicians is not None:
             job.technicians.set(technicians)
     return job

@@ -10,6 +10,7 @@ import re
 
 from django import forms
 from django.contrib.auth.decorators import login_required
+from django.core.exceptions import ValidationError
 from django.http import HttpRequest, HttpResponse
 from django.shortcuts import render
 from django.urls import path
@@ -24,6 +25,7 @@ from circuits.csv_io import (
     circuits_to_csv,
     read_upload,
 )
+from circuits.services import check_unlocked
 from circuits.views.access import _get_job_for_user
 from shop.security import security_log
 
@@ -71,6 +73,12 @@ def circuit_csv_import(request: HttpRequest, number: str) -> HttpResponse:
     form = CsvUploadForm(request.POST, request.FILES) if posted else CsvUploadForm()
     result: ImportResult | None = None
     may_update = request.user.has_perm(UPDATE_BY_IMPORT_PERM)
+    if posted and form.is_valid():
+        try:
+            # Said once above the form, not on every row the file would have written.
+            check_unlocked(job)
+        except ValidationError as exc:
+            form.add_error(None, exc)
     if posted and form.is_valid():
         result = circuits_from_csv(job=job, text=form.cleaned_data["file"], allow_update=may_update)
         security_log(

@@ -13,7 +13,7 @@ from __future__ import annotations
 from django import forms
 from django.contrib import messages
 from django.contrib.auth.decorators import login_required
-from django.core.exceptions import PermissionDenied
+from django.core.exceptions import PermissionDenied, ValidationError
 from django.db import IntegrityError
 from django.db.models import Count, Q
 from django.http import HttpRequest, HttpResponse
@@ -144,6 +144,10 @@ def _save(form, terminals) -> Device | None:
     form, and nothing is saved."""
     try:
         return device_save(form=form, terminals=terminals)
+    except ValidationError as exc:
+        # Locked by approval, or a terminal to be removed carries readings.
+        form.add_error(None, exc)
+        return None
     except IntegrityError:
         form.add_error(
             None,

@@ -37,6 +37,7 @@ from circuits.views.access import (
 )
 from circuits.views.removals import circuit_delete
 from shop.fields import parse_id
+from shop.views.access import job_access
 
 
 @dataclass
@@ -149,7 +150,9 @@ def _editor(request, job, form: CircuitForm, circuit: Circuit | None, panel: Pan
         "terminations": terminations,
         "preview_query": f"?circuit={circuit.pk}" if circuit is not None and circuit.pk else "",
         "terminals_for": _ends(form["from_device"].value(), form["to_device"].value()),
-        "can_waive": not form.is_bound and circuit is not None,
+        "can_waive": not form.is_bound
+        and circuit is not None
+        and job_access(request.user, job, request).may_edit,
     }
     return render(request, "circuits/editor.html", context)
 

@@ -71,13 +71,16 @@ def device_delete(request: HttpRequest, number: str, pk: int) -> HttpResponse:
         request.user, number, pk, perm="circuits.delete_device", write=True
     )
     in_use = device_circuit_tags(device)
+    refusal = ""
     if _confirmed(request) and not in_use:
         name = device.name
         try:
             delete_device(device=device, user=request.user)
-        except ValidationError:
-            # A circuit was added to it since the page was read: show the refusal.
+        except ValidationError as exc:
+            # A circuit was added to it since the page was read (shown as in use), or the
+            # job is locked, or its terminals carry readings: show the refusal.
             in_use = device_circuit_tags(device)
+            refusal = "" if in_use else " ".join(exc.messages)
         else:
             security_log(
                 "delete", request=request, record="device", job=job.number, name=name, pk=pk
@@ -89,7 +92,8 @@ def device_delete(request: HttpRequest, number: str, pk: int) -> HttpResponse:
         "device": device,
         "in_use": in_use,
         "confirm_value": CONFIRM_VALUE,
-        "not_confirmed": NOT_CONFIRMED if request.method == "POST" and not in_use else "",
+        "not_confirmed": refusal
+        or (NOT_CONFIRMED if request.method == "POST" and not in_use else ""),
     }
-    refused = request.method == "POST" and in_use
+    refused = request.method == "POST" and (in_use or refusal)
     return render(request, "circuits/device_delete.html", context, status=409 if refused else 200)

@@ -6,6 +6,7 @@ from __future__ import annotations
 
 from django.contrib import messages
 from django.contrib.auth.decorators import login_required
+from django.core.exceptions import ValidationError
 from django.http import HttpRequest, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import path
@@ -13,7 +14,7 @@ from django.views.decorators.http import require_http_methods
 
 from circuits.forms import TerminationForm
 from circuits.models import Termination
-from circuits.services import termination_spec_fill
+from circuits.services import termination_update
 from circuits.views.access import _get_job_for_user
 from shop.views.access import safe_next
 
@@ -37,15 +38,13 @@ def termination_edit(request: HttpRequest, number: str, pk: int) -> HttpResponse
     back = _back_url(request, termination)
     form = TerminationForm(request.POST or None, instance=termination)
     if request.method == "POST" and form.is_valid():
-        termination = form.save(commit=False)
-        if form.refill:
-            termination.torque_source = Termination.SpecSource.NONE
-            termination.torque_source_note = ""
-            termination_spec_fill(termination)
-        termination.full_clean()
-        termination.save()
-        messages.success(request, f"Termination {termination} saved.")
-        return redirect(back)
+        try:
+            saved = termination_update(termination=form.save(commit=False), refill=form.refill)
+        except ValidationError as exc:
+            form.add_error(None, exc)
+        else:
+            messages.success(request, f"Termination {saved} saved.")
+            return redirect(back)
     context = {"job": job, "termination": termination, "form": form, "back": back}
     return render(request, "circuits/termination_form.html", context)
 

@@ -2,11 +2,14 @@
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 from django.core.exceptions import PermissionDenied
 from django.http import HttpRequest
 from django.shortcuts import get_object_or_404
 from django.utils.http import url_has_allowed_host_and_scheme
 
+from inspections.services.status import job_is_locked, lock_message
 from shop.models import Job
 
 # Leads and office hold it (shop/roles.py); everyone else writes only to their own jobs.
@@ -50,6 +53,41 @@ def _get_job_for_user(
     if write:
         require_job_write(user, job)
     return job
+
+
+@dataclass(frozen=True)
+class JobAccess:
+    """What a page may offer a user on one job: `may_write` (assigned, or a lead or
+    office), `locked` (approved: every write refused until a lead reopens it) and
+    `may_edit`, both together: show write buttons only when it is true. The role's own
+    permission (perms.circuits.add_circuit, ...) is still checked beside it."""
+
+    may_write: bool
+    locked: bool
+    lock_message: str
+
+    @property
+    def may_edit(self) -> bool:
+        return self.may_write and not self.locked
+
+
+def job_access(user, job: Job, request: HttpRequest | None = None) -> JobAccess:
+    """The JobAccess of `user` on `job`, worked out once per request (templates ask for it
+    in several partials)."""
+    cache = getattr(request, "_job_access", None) if request is not None else None
+    if cache is not None and job.pk in cache:
+        return cache[job.pk]
+    locked = job_is_locked(job)
+    access = JobAccess(
+        may_write=may_write_job(user, job),
+        locked=locked,
+        lock_message=lock_message(job) if locked else "",
+    )
+    if request is not None:
+        if cache is None:
+            cache = request._job_access = {}
+        cache[job.pk] = access
+    return access
 
 
 def safe_next(request: HttpRequest, fallback: str) -> str:

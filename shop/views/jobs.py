@@ -1,9 +1,14 @@
-"""Job list, job page, job create and edit."""
+"""Job list, job page, job create and edit.
+
+The job page leads with the stage the work is at (shop.views.jobs_panel): its progress,
+one button to carry on, the sign-offs and a summary of the system's findings. The full
+schedule, diagram and device list are pages of their own (circuits/views)."""
 
 from __future__ import annotations
 
 from django.contrib import messages
 from django.contrib.auth.decorators import login_required
+from django.core.exceptions import ValidationError
 from django.core.paginator import Paginator
 from django.http import HttpRequest, HttpResponse
 from django.shortcuts import redirect, render
@@ -13,7 +18,8 @@ from circuits.system import job_system_report
 from shop.forms import JobForm, JobSearchForm
 from shop.models import Job
 from shop.services import job_create, job_update
-from shop.views.access import _get_job_for_user, require_perm
+from shop.views.access import _get_job_for_user, job_access, require_perm
+from shop.views.jobs_panel import findings_summary, signoff_rows, stage_panel
 
 PAGE_SIZE = 20
 
@@ -38,7 +44,16 @@ def job_list(request: HttpRequest) -> HttpResponse:
 @require_GET
 def job_detail(request: HttpRequest, number: str) -> HttpResponse:
     job = _get_job_for_user(request.user, number)
-    context = {"job": job, "system": job_system_report(job)}
+    access = job_access(request.user, job, request)
+    system = job_system_report(job)
+    context = {
+        "job": job,
+        "access": access,
+        "panel": stage_panel(job, request.user, access),
+        "signoffs": signoff_rows(job),
+        "summary": findings_summary(system),
+        "system": system,
+    }
     return render(request, "shop/job_detail.html", context)
 
 
@@ -65,11 +80,16 @@ def job_edit(request: HttpRequest, number: str) -> HttpResponse:
     form = JobForm(request.POST or None, instance=job)
     if request.method == "POST" and form.is_valid():
         data = dict(form.cleaned_data)
-        job_update(job=job, technicians=data.pop("technicians"), **data)
-        messages.success(request, f"Job {job.number} saved.")
-        return redirect(job)
-    return render(
-        request,
-        "shop/form.html",
-        {"form": form, "title": f"Edit job {job.number}", "cancel_url": job.get_absolute_url()},
-    )
+        try:
+            job_update(job=job, technicians=data.pop("technicians"), **data)
+        except ValidationError as exc:  # approved, so locked: said above the form
+            form.add_error(None, exc)
+        else:
+            messages.success(request, f"Job {job.number} saved.")
+            return redirect(job)
+    context = {
+        "form": form,
+        "title": f"Edit job {job.number}",
+        "cancel_url": job.get_absolute_url(),
+    }
+    return render(request, "shop/form.html", context)

@@ -112,10 +112,9 @@ def test_headers_are_links_with_htmx_beside_them(technician_client, job):
     assert 'aria-sort="ascending"' in body  # the tag column, sorted by default
 
 
-def test_the_job_page_shows_findings_above_the_schedule(technician_client, job):
-    body = technician_client.get(job.get_absolute_url()).content.decode()
-    findings, schedule = body.index('id="findings"'), body.index('id="schedule-table"')
-    assert findings < schedule
+def test_the_schedule_page_lists_the_circuits_and_their_findings(technician_client, job):
+    body = technician_client.get(_url(job)).content.decode()
+    assert body.index('id="schedule-table"') < body.index('id="findings"')
     assert "CONSTRUCTION_SOLID" in body
     assert "Blocking" in body
     assert _tags(body) == ["D-02", "D-07", "D-10"]
@@ -124,8 +123,15 @@ def test_the_job_page_shows_findings_above_the_schedule(technician_client, job):
     assert "Waive this finding" not in body
 
 
-def test_lengths_show_in_the_unit_they_were_entered_in(technician_client, job):
+def test_the_job_page_counts_the_findings_and_links_to_the_schedule(technician_client, job):
     body = technician_client.get(job.get_absolute_url()).content.decode()
+    assert 'id="findings"' in body and _url(job) in body
+    assert 'id="schedule-table"' not in body and "CONSTRUCTION_SOLID" not in body
+    assert CAUTION in body
+
+
+def test_lengths_show_in_the_unit_they_were_entered_in(technician_client, job):
+    body = technician_client.get(_url(job)).content.decode()
     assert "10 ft" in body
     assert "6 m" in body
 

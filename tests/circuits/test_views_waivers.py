@@ -37,6 +37,12 @@ def _post(job, **fields) -> dict:
     return data
 
 
+def _schedule(job) -> str:
+    # The findings, with their waivers and forms, are listed on the schedule page (the job
+    # page shows their counts).
+    return reverse("circuit_schedule", args=[job.number])
+
+
 def test_anonymous_is_sent_to_sign_in(anon_client, job):
     response = anon_client.post(reverse("waiver_new", args=[job.number]), _post(job))
     assert response.status_code == 302
@@ -52,13 +58,13 @@ def test_only_leads_waive(request, client_name, job):
     assert not Waiver.objects.exists()
 
 
-def test_a_lead_waives_a_finding_and_the_job_page_shows_who_when_and_why(lead_client, lead, job):
+def test_a_lead_waives_a_finding_and_the_schedule_shows_who_when_and_why(lead_client, lead, job):
     response = lead_client.post(reverse("waiver_new", args=[job.number]), _post(job))
     assert response.status_code == 302
     assert response["Location"] == job.get_absolute_url()
     waiver = Waiver.objects.get(job=job)
     assert (waiver.code, waiver.subject, waiver.lead) == ("CONSTRUCTION_SOLID", "D-01", lead)
-    body = lead_client.get(job.get_absolute_url()).content.decode()
+    body = lead_client.get(_schedule(job)).content.decode()
     stamp = waiver.created_at.astimezone().strftime("%Y-%m-%d")
     assert f"Waived by Test Lead on {stamp}" in body
     assert REASON in body
@@ -216,7 +222,7 @@ def test_technician_cannot_waive_or_withdraw(technician_client, lead_client, job
     waiver.refresh_from_db()
     assert waiver.is_active
     # The technician sees the waiver but is offered neither form.
-    body = technician_client.get(job.get_absolute_url()).content.decode()
+    body = technician_client.get(_schedule(job)).content.decode()
     assert "Waived by Test Lead" in body
     assert "Withdraw waiver" not in body and "Waive this finding" not in body
 
@@ -242,7 +248,7 @@ def _lapse(job) -> None:
 def test_a_lapsed_waiver_shows_the_finding_open_with_what_changed(lead_client, job):
     _waive(lead_client, job)
     _lapse(job)
-    body = lead_client.get(job.get_absolute_url()).content.decode()
+    body = lead_client.get(_schedule(job)).content.decode()
     assert "is-lapsed" in body and "Waiver lapsed" in body
     assert "waived for an earlier version of this circuit: length 2 m → 6 m" in body
     assert REASON in body  # the lapsed waiver's reason, kept for reference
@@ -280,7 +286,7 @@ def test_a_lead_renews_a_lapsed_waiver_from_the_finding(lead_client, job):
 def test_a_technician_sees_the_lapse_but_cannot_renew(technician_client, lead_client, job):
     _waive(lead_client, job)
     _lapse(job)
-    body = technician_client.get(job.get_absolute_url()).content.decode()
+    body = technician_client.get(_schedule(job)).content.decode()
     assert "waived for an earlier version of this circuit" in body
     assert "Renew waiver" not in body
 
@@ -289,7 +295,7 @@ def test_every_htmx_form_in_a_finding_has_a_plain_action(lead_client, job):
     _waive(lead_client, job)
     _lapse(job)
     pages = [
-        lead_client.get(job.get_absolute_url()).content.decode(),
+        lead_client.get(_schedule(job)).content.decode(),
         lead_client.post(
             _withdraw_url(Waiver.objects.get()), headers={"HX-Request": "true"}
         ).content.decode(),

@@ -5,6 +5,8 @@ from __future__ import annotations
 import pytest
 from django.urls import reverse
 
+from inspections.models import Stage
+from inspections.services import job_status_sync
 from shop.models import Job
 from shop.views.jobs import PAGE_SIZE
 from tests.factories import make_job, make_owner, make_vehicle
@@ -44,11 +46,24 @@ def test_search_finds_by_number_owner_vehicle_and_vin(technician_client):
 
 
 def test_status_filter_keeps_only_that_status(technician_client):
+    # A new job stands in its first install (its stages set the status); a job whose
+    # stages are gone (as before stages existed) is booked in.
+    installing = make_job()
     booked = make_job()
-    installing = make_job(status=Job.Status.INSTALL)
+    Stage.objects.filter(job=booked).delete()
+    job_status_sync(job=booked)
     body = technician_client.get(URL, {"status": "install"}).content.decode()
     assert installing.number in body
     assert booked.number not in body
+    body = technician_client.get(URL, {"status": "booked"}).content.decode()
+    assert booked.number in body and installing.number not in body
+
+
+def test_the_list_shows_each_jobs_status_in_words(technician_client):
+    job = make_job()
+    body = technician_client.get(URL).content.decode()
+    assert f'<span class="status status-{Job.Status.INSTALL}">First install</span>' in body
+    assert job.number in body
 
 
 def test_newest_first_and_paginated(technician_client):
