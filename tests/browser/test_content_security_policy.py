@@ -72,12 +72,12 @@ def test_daily_pages_load_without_a_policy_violation(live_server, sign_in, lead,
     expect(page.locator("#job-results tbody tr")).to_have_count(1)
 
     page.goto(f"{live_server.url}{job.get_absolute_url()}")
-    diagram = page.locator(".diagram-frame svg")
-    expect(diagram).to_be_visible()
-    assert diagram.bounding_box()["height"] > 100  # drawn at size, not collapsed
+    expect(page.locator("#stage-panel, .stage-panel").first).to_be_visible()
 
     page.goto(f"{live_server.url}{reverse('job_diagram_svg', args=[job.number])}")
-    expect(page.locator("svg")).to_be_visible()
+    diagram = page.locator("svg").first
+    expect(diagram).to_be_visible()
+    assert diagram.bounding_box()["height"] > 100  # drawn at size, not collapsed
 
     page.goto(f"{live_server.url}{reverse('circuit_schedule', args=[job.number])}")
     expect(page.get_by_text("Fridge feed").first).to_be_visible()

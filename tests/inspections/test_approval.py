@@ -7,6 +7,7 @@ from __future__ import annotations
 import pytest
 from django.core.exceptions import PermissionDenied, ValidationError
 
+from circuits.models import Circuit
 from inspections.models import AuditEvent, SignOff, Stage
 from inspections.services import (
     checklist_item_mark,
@@ -245,8 +246,9 @@ def test_the_owner_types_a_name_and_draws_a_signature(approved_job):
 
 
 def test_the_owner_does_not_sign_a_record_changed_since_approval(approved_job):
-    # A circuit added behind the lock's back (circuits/ does not refuse yet while locked).
-    make_spec_circuit(approved_job)
+    # A circuit made far thinner behind the lock's back, straight in the database (every
+    # service refuses while the job is locked): its findings, and so the content, change.
+    Circuit.objects.filter(job=approved_job).update(conductor_size="18")
     with pytest.raises(ValidationError) as exc_info:
         handover_receive(job=approved_job, printed_name="Sam Owner", signature_png=signature())
     assert "changed since it was approved" in _errors(exc_info)["job"]

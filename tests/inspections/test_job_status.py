@@ -37,8 +37,11 @@ def _status(job) -> str:
     return Job.objects.get(pk=job.pk).status
 
 
-def test_a_job_is_booked_until_its_stages_exist_then_in_first_install():
-    job = make_job()
+def test_a_new_job_starts_in_first_install_and_one_without_stages_is_booked():
+    job = make_job()  # job_create gives a new job its four stages
+    assert _status(job) == Job.Status.INSTALL
+    Stage.objects.filter(job=job).delete()
+    job_status_sync(job=job)
     assert _status(job) == Job.Status.BOOKED
     stages_ensure(job=job)
     assert _status(job) == Job.Status.INSTALL
