@@ -44,6 +44,17 @@ class ShopProfile(models.Model):
         help_text="Tolerance (±%) applied to torque specs that do not state their own.",
     )
 
+    class PaperSize(models.TextChoices):
+        A4 = "A4", "A4 (210 × 297 mm)"
+        LETTER = "letter", "Letter (8.5 × 11 in)"
+
+    paper_size = models.CharField(
+        max_length=6,
+        choices=PaperSize.choices,
+        default=PaperSize.A4,
+        help_text="Paper of the printed wiring record and stage sheets.",
+    )
+
     class Meta:
         verbose_name = "shop profile"
         # Shop-wide abilities that are no one model's add/change/delete; the role table
