@@ -4,7 +4,8 @@ Documented variables (see README "Running for a real shop"):
 SECRET_KEY, DEBUG, ALLOWED_HOSTS, CSRF_TRUSTED_ORIGINS, TIME_ZONE, DATABASE_URL,
 SECURE_SSL_REDIRECT, SECURE_PROXY_SSL_HEADER, SECURE_HSTS_SECONDS, MEDIA_ROOT,
 MEDIA_STORAGE_BACKEND / MEDIA_STORAGE_OPTIONS (JSON) for an S3-compatible store,
-REVERSE_PROXY_COUNT, SESSION_IDLE_MINUTES, SIGN_IN_FAILURE_LIMIT, SIGN_IN_COOLOFF_MINUTES.
+REVERSE_PROXY_COUNT, SESSION_IDLE_MINUTES, SIGN_IN_FAILURE_LIMIT, SIGN_IN_COOLOFF_MINUTES,
+SIGNING_DIR, SIGNING_TIMESTAMP_URL.
 """
 
 from __future__ import annotations
@@ -300,6 +301,14 @@ EMAIL_BACKEND = os.environ.get("EMAIL_BACKEND", "django.core.mail.backends.conso
 EMAIL_HOST = os.environ.get("EMAIL_HOST", "localhost")
 EMAIL_PORT = int(os.environ.get("EMAIL_PORT", "25"))
 DEFAULT_FROM_EMAIL = os.environ.get("DEFAULT_FROM_EMAIL", "ampwright@localhost")
+
+# The shop's signing key and certificate for the wiring record (manage.py signing_setup):
+# outside MEDIA_ROOT so no media URL or storage backend can ever hand the key out; the
+# directory is mode 0700 and the files 0600 (the app's user alone reads them).
+SIGNING_DIR = Path(os.environ.get("SIGNING_DIR", VAR_DIR / "signing"))
+# An RFC 3161 timestamp server; when set, each record's signature carries its timestamp
+# token (PAdES B-T). Empty: the signature alone (PAdES B-B), nothing leaves the server.
+SIGNING_TIMESTAMP_URL = os.environ.get("SIGNING_TIMESTAMP_URL", "").strip()
 
 LOGGING = {
     "version": 1,

@@ -143,6 +143,9 @@ OFFICE_ADMIN = {
     "inspections.shopchecklistitem": "view add change",
     "inspections.signoff": "view",
     "inspections.thermalwaiver": "view",
+    "wiring.recordrevision": "view",
+    "wiring.ownerlink": "view",
+    "wiring.ownerlinkvisit": "view",
 }
 SUPER_ADMIN = {
     **dict.fromkeys(OFFICE_ADMIN, "view add change delete"),
@@ -159,6 +162,9 @@ SUPER_ADMIN = {
     "inspections.checklistmark": "view",
     "inspections.signoff": "view",
     "inspections.thermalwaiver": "view",
+    "wiring.recordrevision": "view",
+    "wiring.ownerlink": "view",
+    "wiring.ownerlinkvisit": "view",
 }
 # Models whose admin shows every field read-only, so an empty POST saves nothing.
 EVERY_FIELD_READ_ONLY = {"shop.jobsequence"}
