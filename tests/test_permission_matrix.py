@@ -196,6 +196,7 @@ ADMIN_APPS = {
     "shop": "admin admin admin admin 200 200",
     "circuits": "admin admin admin admin 200 200",
     "inspections": "admin admin admin admin 200 200",
+    "wiring": "admin admin admin admin 200 200",
 }
 ADMIN_ACTIONS = ("changelist", "add", "change", "delete", "history", "password_change")
 

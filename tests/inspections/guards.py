@@ -1,5 +1,6 @@
 """Test-only helpers around the append-only guards (inspections/migrations/
-0002_append_only_guards.py and 0005_append_only_guards_signoffs.py).
+0002_append_only_guards.py and 0005_append_only_guards_signoffs.py, and the wiring
+record's wiring/migrations/0002_append_only_guards.py).
 
 `clear_evidence()` is for transactional tests that leave evidence rows behind: on SQLite
 the test runner empties tables with DELETE FROM, which the triggers refuse. It removes the
@@ -21,6 +22,9 @@ from django.db import connection, transaction
 
 # Dependants first, so the deletion below never leaves a row pointing at a deleted one.
 GUARDED_TABLES = (
+    # The wiring record's revisions point at the approval sign-off: they go first.
+    "wiring_recordrevision",
+    "wiring_ownerlinkvisit",
     "inspections_signoff",
     "inspections_checklistmark",
     "inspections_thermalwaiver",
