@@ -13,7 +13,7 @@ from django.contrib.auth.decorators import login_required
 from django.core.exceptions import ValidationError
 from django.http import Http404, HttpRequest, HttpResponse
 from django.shortcuts import redirect, render
-from django.urls import path
+from django.urls import path, reverse
 from django.views.decorators.http import require_http_methods
 
 from inspections import services
@@ -154,7 +154,10 @@ def job_approve(request: HttpRequest, number: str) -> HttpResponse:
         except ValidationError as exc:
             errors = error_dict(exc)
         else:
-            return _done(request, job, f"Job {job.number} approved for handover; it is locked.")
+            # On to the record's page, which renders and signs the record for this
+            # approval with its progress shown (wiring.views.revisions.record_issue_now).
+            messages.success(request, f"Job {job.number} approved for handover; it is locked.")
+            return redirect(reverse("revision_list", args=[job.number]))
     field_errors, blockers = split_errors(errors)
     access = job_access(request.user, job, request)
     if not errors and not access.locked:

@@ -111,3 +111,39 @@ def test_downloads_take_no_post(issued, lead_client):
     revision, _ = issued
     url = reverse("revision_download", args=[revision.job.number, 1])
     assert lead_client.post(url).status_code == 405
+
+
+# Issuing the record from its page (the approval leads there; the page posts at once).
+
+
+def test_issuing_from_the_page_signs_the_record_of_the_approval(
+    approved_job, signing_key, media, lead_client
+):
+    url = reverse("record_issue_now", args=[approved_job.number])
+    page = lead_client.get(reverse("revision_list", args=[approved_job.number])).content.decode()
+    assert 'hx-trigger="load, submit"' in page and f'action="{url}"' in page
+    response = lead_client.post(url, HTTP_HX_REQUEST="true")
+    assert response.status_code == 200
+    [revision] = RecordRevision.objects.filter(job=approved_job)
+    assert revision.number == 1 and "Download PDF" in response.content.decode()
+    lead_client.post(url)  # again, as a second tab would: the same revision
+    assert RecordRevision.objects.filter(job=approved_job).count() == 1
+
+
+def test_a_technician_cannot_issue_the_record(approved_job, signing_key, media, technician_client):
+    url = reverse("record_issue_now", args=[approved_job.number])
+    assert technician_client.post(url).status_code == 403
+    assert not RecordRevision.objects.exists()
+
+
+def test_issuing_before_approval_says_why_and_stores_nothing(db, signing_key, media, lead):
+    from django.test import Client
+
+    job = make_job(lead=lead)
+    client = Client()
+    client.force_login(lead)
+    response = client.post(reverse("record_issue_now", args=[job.number]), follow=True)
+    assert "could not be issued" in response.content.decode() or "not approved" in (
+        response.content.decode()
+    )
+    assert not RecordRevision.objects.exists()

@@ -9,6 +9,9 @@ from __future__ import annotations
 ROWS: dict[str, tuple[str, str]] = {
     "revision_list": ("login 200 200 200 200 200", "login 405 405 405 405 405"),
     "revision_download": ("login 404 404 404 404 404", "login 405 405 405 405 405"),
+    # Only those who may approve issue the record; the matrix's job is not approved, so
+    # the issue is refused with a message and the page shown again (302).
+    "record_issue_now": ("login 405 405 405 405 405", "login 403 403 302 403 302"),
 }
 
 
