@@ -3,7 +3,8 @@ jobs' electrical systems (circuits.demo).
 
 Everything here is made up for showing the app. Loading is idempotent: records are found
 by stable keys (username, owner email, vehicle identification, job title per vehicle)
-and only created when missing.
+and only created when missing. The jobs' statuses follow their stages, which the demo's
+inspections work (inspections.demo) moves: no status is set here.
 """
 
 from __future__ import annotations
@@ -17,6 +18,7 @@ from django.db import transaction
 from django.utils import timezone
 
 from circuits import demo as circuits_demo
+from inspections import demo as inspections_demo
 from shop import roles
 from shop.models import Job, Owner, ShopProfile, Vehicle
 from shop.services import job_create
@@ -122,14 +124,14 @@ VEHICLES = [
     ),
 ]
 
-# (vehicle identification, title, description, status, days ago booked, lead, technicians)
+# (vehicle identification, title, description, days ago booked, lead, technicians). The
+# status is not set here: the stages drive it, and inspections.demo moves them.
 JOBS = [
     (
         "1BFVC12E3R0004217",
         "Full electrical build: lithium bank, solar, inverter/charger",
         "Two paralleled 12 V lithium batteries, 400 W roof solar, alternator charging, "
         "shore inlet.",
-        Job.Status.INSTALL,
         6,
         "june",
         ["tessa", "ravi"],
@@ -138,7 +140,6 @@ JOBS = [
         "5KWTR24X9S0000388",
         "24 V house system for the box body",
         "24 V bank in the rear locker, DC-DC charging from the truck's 24 V alternator.",
-        Job.Status.RETORQUE,
         21,
         "june",
         ["ravi"],
@@ -147,7 +148,6 @@ JOBS = [
         "4TWLR18C5P0019022",
         "48 V system with 230 V inverter/charger",
         "48 V bank, 5 kVA inverter/charger, 230 V shore supply and AC branch circuits.",
-        Job.Status.BOOKED,
         1,
         "june",
         ["tessa"],
@@ -156,7 +156,6 @@ JOBS = [
         "QKW12345D616",
         "Replace house bank and rewire the DC panel",
         "Tinned conductors throughout; new DC panel and battery switch.",
-        Job.Status.HANDOVER,
         35,
         "june",
         ["tessa", "ravi"],
@@ -165,7 +164,6 @@ JOBS = [
         "1BFVC12E3R0004217",
         "Retrofit: add second solar string",
         "Customer return: extra 200 W panel on the roof rack.",
-        Job.Status.HANDED_OVER,
         120,
         "june",
         ["ravi"],
@@ -236,8 +234,8 @@ def load() -> list[tuple[str, str, str]]:
         today = datetime.date.today()
         now = timezone.now()
         # Oldest booking first, so job numbers follow the order the work came in.
-        for ident, title, description, status, days_ago, lead, techs in sorted(
-            JOBS, key=lambda row: -row[4]
+        for ident, title, description, days_ago, lead, techs in sorted(
+            JOBS, key=lambda row: -row[3]
         ):
             vehicle = vehicles[ident]
             if Job.objects.filter(vehicle=vehicle, title=title).exists():
@@ -246,7 +244,6 @@ def load() -> list[tuple[str, str, str]]:
                 vehicle=vehicle,
                 title=title,
                 description=description,
-                status=status,
                 lead=users[lead],
                 booked_in_on=today - datetime.timedelta(days=days_ago),
                 created_at=now - datetime.timedelta(days=days_ago),
@@ -255,4 +252,6 @@ def load() -> list[tuple[str, str, str]]:
 
         # Each demo job's electrical system, and the shop's default torque specs.
         circuits_demo.load(lead=users["june"])
+        # The wrenches, and the work on each job up to the stage it is shown at.
+        inspections_demo.load(users=users, passwords={username: pw for username, *_, pw in STAFF})
     return [(username, role, password) for username, _, _, role, password in STAFF]
