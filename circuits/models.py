@@ -129,6 +129,9 @@ class Device(models.Model):
         help_text="Inverter/charger: the shore input current limit it is set to.",
     )
     notes = models.TextField(blank=True)
+    # Where the device sits along the vehicle (0 first): the torque work list walks the
+    # devices in this order so a technician reads one device after the next.
+    walking_order = models.PositiveIntegerField(default=0)
 
     class Meta:
         ordering = ["job", "name"]

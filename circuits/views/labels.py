@@ -1,5 +1,6 @@
-"""A printable sheet of wire-marker labels: one per circuit end, each with a QR code that
-opens the circuit's page."""
+"""A printable sheet of wire-marker labels: one per circuit end, each with its own QR code
+that opens that end's torque entry (the label scan page, inspections.views.torque), or
+the circuit's page when no torque stage is open."""
 
 from __future__ import annotations
 
@@ -9,7 +10,7 @@ import segno
 from django.contrib.auth.decorators import login_required
 from django.http import Http404, HttpRequest, HttpResponse
 from django.shortcuts import get_object_or_404, render
-from django.urls import path
+from django.urls import path, reverse
 from django.utils.safestring import SafeString, mark_safe
 from django.views.decorators.http import require_GET
 
@@ -42,13 +43,14 @@ def qr_svg(url: str) -> SafeString:
 
 
 def wire_labels(circuits, absolute_url) -> list[WireLabel]:
-    """Two labels per circuit, its from end then its to end."""
+    """Two labels per circuit, its from end then its to end, each coding its own end."""
     labels = []
     for circuit in circuits:
-        url = absolute_url(circuit.get_absolute_url())
-        qr = qr_svg(url)
         for end, device in (("from", circuit.from_device), ("to", circuit.to_device)):
-            labels.append(WireLabel(circuit, end, device.name, size_text(circuit), url, qr))
+            url = absolute_url(reverse("label_scan", args=[circuit.pk, end]))
+            labels.append(
+                WireLabel(circuit, end, device.name, size_text(circuit), url, qr_svg(url))
+            )
     return labels
 
 

@@ -1,5 +1,5 @@
 """Wire-marker labels: one per circuit end, each with the tag, the size in trade notation
-(× parallel), the end it marks, and a QR code that opens the circuit's page."""
+(× parallel), the end it marks, and a QR code for that end's label scan page."""
 
 from __future__ import annotations
 
@@ -109,11 +109,12 @@ def test_each_label_gives_tag_size_and_the_end_it_marks(technician_client, job):
     assert text["D-01", "to"] == ("D-01", "14 AWG", "to Lamp & <fan>")
 
 
-def test_each_qr_code_encodes_the_circuits_absolute_url(technician_client, job):
+def test_each_qr_code_encodes_the_absolute_url_of_its_own_end(technician_client, job):
     _, labels = _labels(technician_client, job)
     for label in labels:
         circuit = job.circuits.get(tag=label.get("data-tag"))
-        url = "http://testserver" + reverse("circuit_edit", args=[job.number, circuit.pk])
+        end = label.get("data-end")
+        url = "http://testserver" + reverse("label_scan", args=[circuit.pk, end])
         assert label.get("data-url") == url
         assert label.find("wl-url")[0].text() == url
         # The modules drawn on the label are exactly the code for that URL.
