@@ -22,6 +22,7 @@ from inspections import demo as inspections_demo
 from shop import roles
 from shop.models import Job, Owner, ShopProfile, Vehicle
 from shop.services import job_create
+from wiring import demo as wiring_demo
 
 SHOP = {
     "name": "Bramblefield Conversions",
@@ -254,4 +255,6 @@ def load() -> list[tuple[str, str, str]]:
         circuits_demo.load(lead=users["june"])
         # The wrenches, and the work on each job up to the stage it is shown at.
         inspections_demo.load(users=users, passwords={username: pw for username, *_, pw in STAFF})
+        # The approved jobs' signed wiring records (a demo signing key made on first use).
+        wiring_demo.load(jobs=Job.objects.filter(title__in=[row[1] for row in JOBS]))
     return [(username, role, password) for username, _, _, role, password in STAFF]

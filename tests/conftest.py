@@ -3,10 +3,19 @@
 from __future__ import annotations
 
 import pytest
-from django.test import Client
+from django.test import Client, override_settings
 
 from shop import roles
 from tests.factories import make_user
+
+
+@pytest.fixture(scope="session", autouse=True)
+def _files_of_their_own(tmp_path_factory):
+    """The tests' signing keys and stored files (photos, signed records) live in a folder
+    of their own, never in the shop's var/: the demo and the record tests make keys."""
+    base = tmp_path_factory.mktemp("files")
+    with override_settings(SIGNING_DIR=base / "signing", MEDIA_ROOT=base / "media"):
+        yield
 
 
 @pytest.fixture(autouse=True)
