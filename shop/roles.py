@@ -101,6 +101,11 @@ _VIEW_GATES = [
 ]
 _WORK = ["inspections.add_checklistmark", "inspections.sign_stage"]
 _REVIEW = ["inspections.approve_job", "inspections.reopen_job", "inspections.waive_thermal"]
+# The shop insight pages (mirrored by insights/0002_roles): leads and office see the
+# loosening and wrench figures and the shop rules; leads alone see the per-technician
+# figures (coaching) and make and retire rules; technicians see none of it.
+_INSIGHTS = ["insights.view_insights"]
+_LEAD_INSIGHTS = ["insights.view_technician_insights", "insights.manage_shop_rules"]
 
 # Mirrored, frozen, by the data migrations shop/0003_role_review (shop and circuits) and
 # inspections/0003_roles (inspections).
@@ -130,6 +135,8 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         *_VIEW_GATES,
         *_WORK,
         *_REVIEW,
+        *_INSIGHTS,
+        *_LEAD_INSIGHTS,
     ],
     OFFICE: [
         *_VIEW_SHOP,
@@ -147,6 +154,7 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         *_WRENCHES,
         *_VIEW_GATES,
         "inspections.manage_checklist",
+        *_INSIGHTS,
     ],
 }
 

@@ -82,6 +82,7 @@ INSTALLED_APPS = [
     "shop",
     "circuits",
     "inspections",
+    "insights",
     "wiring",
 ]
 

@@ -40,6 +40,7 @@ urlpatterns = [
     path("vehicles/<int:pk>/edit/", records.vehicle_edit, name="vehicle_edit"),
     path("", include("circuits.urls")),
     path("", include("inspections.urls")),
+    path("", include("insights.urls")),
     path("", include("wiring.urls")),
     path("admin/", admin.site.urls),
 ]

@@ -55,6 +55,10 @@ FEATURE_ROWS = tuple(
             f"tests.wiring.matrix.{feature}"
             for feature in ("record", "revisions", "owner", "verify")
         ),
+        *(
+            f"tests.insights.matrix.{feature}"
+            for feature in ("loosening", "wrenches", "technicians", "rules")
+        ),
     )
 )
 

@@ -22,6 +22,7 @@ something else, the mark no longer counts and the item shows as changed since ma
 from __future__ import annotations
 
 import copy
+from collections.abc import Callable
 from dataclasses import dataclass
 
 from django.core.exceptions import ValidationError
@@ -221,6 +222,19 @@ def _latest_marks(stage: Stage) -> dict[str, ChecklistMark]:
     return latest
 
 
+# Further sources of items, each `source(stage) -> [ChecklistItem]`, registered by the apps
+# that build on these records (the shop rules of insights, from its AppConfig.ready), so
+# that inspections imports none of them. Their items come after the shop's own.
+ITEM_SOURCES: list[Callable[[Stage], list[ChecklistItem]]] = []
+
+
+def checklist_item_source(source: Callable[[Stage], list[ChecklistItem]]):
+    """Register a further source of checklist items (once, however often it is called)."""
+    if source not in ITEM_SOURCES:
+        ITEM_SOURCES.append(source)
+    return source
+
+
 def checklist_items_for(*, stage: Stage) -> list[ChecklistItem]:
     """The stage's checklist, generated items first (torque per termination, then the
     circuit checks by tag), then the shop's own in their order, each with its latest mark
@@ -257,6 +271,8 @@ def checklist_items_for(*, stage: Stage) -> list[ChecklistItem]:
                     key=shop_item.key, kind=SHOP, text=shop_item.text, shop_item=shop_item
                 )
             )
+    for source in ITEM_SOURCES:
+        items.extend(source(stage))
     for item in items:
         if not item.derived:
             item.mark = marks.get(item.key)
@@ -457,6 +473,7 @@ def shop_checklist_item_save(
 __all__ = [
     "ChecklistItem",
     "checklist_item_mark",
+    "checklist_item_source",
     "checklist_items_for",
     "shop_checklist_item_save",
 ]
