@@ -1,14 +1,25 @@
 """Benchmark: render the wiring record of a large invented job.
 
-Run: python bench/record.py
-Builds, in a throwaway SQLite database, a job of 150 circuits, 600 terminations, 1,800
-torque readings (first install and retorque, with re-reads) and 20 photos, through the
-services; then, in a child process, times `render_record_pdf` (the whole PDF/A-3b with
-its embedded CSV and JSON) and the time WeasyPrint takes for a plain HTML table of the
-same rows, and reads the child's peak memory (its maximum resident set size).
+Run: python bench/record.py [--keep DIR]
+Builds, in a throwaway SQLite database (or in DIR, kept and reused on the next run with
+the same DIR), a job of 150 circuits, 600 terminations, 1,800 torque readings (first
+install and retorque, with re-reads) and 20 photos, through the services. Then, each in
+a fresh child process and each twice (record, table, record, table):
 
-Goals on the development machine: the record under 5 s, under 400 MB peak, and no more
-than 1.5 × the plain table. Prints the three figures; not a test (no timed tests).
+- the record: `render_record_pdf` (data, template, the whole PDF/A-3b with its embedded
+  CSV and JSON): wall time and CPU time of that call, and the child's peak memory (its
+  maximum resident set size, Django and all);
+- the plain table: WeasyPrint's time for the SAME rows with the SAME cell text (every
+  row of the record's schedule, torque log and thermal tables, from the same cell
+  builders) as one bare HTML table: no stylesheet, default PDF, none of the record's
+  other sections. It runs with the same collector pause as the record (pdf.py), so the
+  ratio measures the record's markup, styles and extra content, not that trick.
+
+The machine is shared and noisy: the load average is printed before and after, both
+runs are printed, and the figure held against each goal is the quieter (lower) of the
+two. CPU time is printed beside wall time because under load wall time mostly measures
+the other processes. Goals on the development machine (2 cores): the record under 5 s,
+under 400 MB peak, and no more than 1.5 × the plain table. Not a test (no timed tests).
 """
 
 from __future__ import annotations
@@ -18,6 +29,7 @@ import io
 import json
 import os
 import resource
+import shutil
 import subprocess
 import sys
 import tempfile
@@ -134,70 +146,159 @@ def build() -> str:
     return job.number
 
 
-def plain_table_html(data: dict) -> str:
-    """The same rows as a bare HTML table: the schedule and the torque log, no styling."""
+def plain_table_html(context: dict) -> str:
+    """The record's table rows as one bare HTML table: the same rows, the same cell
+    text (the record prints each cell's lines split by newlines; here they are plain
+    text and wrap as they fall), no classes, no stylesheet."""
     from html import escape
 
     rows = [
-        [c["tag"], c["from_device"], c["to_device"], c["size_label"], c["length_display"]]
-        for c in data["circuits"]
+        [c[k] for k in ("tag", "route", "conductor", "colours", "length", "current",
+                        "ampacity", "drop", "protection")]
+        for c in context["schedule_rows"]
+    ]  # fmt: skip
+    rows += [[t["end"], t["first"], t["retorque"], t["change"]] for t in context["torque_rows"]]
+    rows += [
+        [t["end"], t["temperature"], t["rise"], t["result"], t["taken"]]
+        for t in context["thermal_rows"]
     ]
-    for row in data["torque_log"]:
-        cells = [row["termination"], row["spec"]]
-        for side in ("first_install", "retorque"):
-            r = row[side] or {}
-            cells.append(
-                f"{r.get('display', '')} {r.get('technician', '')} {r.get('recorded_at', '')}"
-            )
-        rows.append(cells)
     body = "".join(
-        "<tr>" + "".join(f"<td>{escape(str(cell))}</td>" for cell in row) + "</tr>" for row in rows
+        "<tr>" + "".join(f"<td>{escape(cell)}</td>" for cell in row) + "</tr>" for row in rows
     )
     return f"<html><body><table>{body}</table></body></html>"
 
 
-def child(number: str) -> None:
-    """Time the record and the plain table; print JSON for the parent."""
-    from weasyprint import HTML
+def _peak_mb() -> float:
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024  # KiB on Linux
+
+
+def child(what: str, number: str) -> None:
+    """Time one thing in this fresh process; print JSON for the parent."""
+    from django.utils import timezone
 
     from shop.models import Job
-    from wiring.render import record_data, render_record_pdf
 
     job = Job.objects.get(number=number)
-    start = time.perf_counter()
-    pdf = render_record_pdf(job, revision=1, draft=False, verify_url="https://shop.example/v/")
-    record_s = time.perf_counter() - start
-    html = plain_table_html(record_data(job))
-    start = time.perf_counter()
-    HTML(string=html).write_pdf()
-    table_s = time.perf_counter() - start
-    print(json.dumps({"record_s": record_s, "table_s": table_s, "bytes": len(pdf)}))
+    if what == "record":
+        from pypdf import PdfReader
+
+        from wiring.render import render_record_pdf
+
+        wall, cpu = time.perf_counter(), time.process_time()
+        pdf = render_record_pdf(job, revision=1, draft=False, verify_url="https://shop.example/v/")
+        wall, cpu = time.perf_counter() - wall, time.process_time() - cpu
+        out = {"wall": wall, "cpu": cpu, "mb": _peak_mb(), "bytes": len(pdf)}
+        out["pages"] = len(PdfReader(io.BytesIO(pdf)).pages)
+    else:
+        from weasyprint import HTML
+
+        from wiring.render.html import record_context
+        from wiring.render.pdf import _no_cyclic_gc
+
+        context = record_context(
+            job, revision=1, draft=False, verify_url="", issued_at=timezone.now()
+        )
+        html = plain_table_html(context)
+        wall, cpu = time.perf_counter(), time.process_time()
+        with _no_cyclic_gc():
+            document = HTML(string=html).render()
+            document.write_pdf()
+        wall, cpu = time.perf_counter() - wall, time.process_time() - cpu
+        out = {"wall": wall, "cpu": cpu, "mb": _peak_mb(), "pages": len(document.pages)}
+    print(json.dumps(out))
 
 
-def main() -> None:
-    if len(sys.argv) == 3 and sys.argv[1] == "--child":
-        _setup(os.environ["AMPWRIGHT_VAR_DIR"])
-        child(sys.argv[2])
-        return
-    with tempfile.TemporaryDirectory(prefix="ampwright-bench-") as var_dir:
-        _setup(var_dir)
+def _run_child(what: str, number: str) -> dict:
+    out = subprocess.run(
+        [sys.executable, __file__, "--child", what, number],
+        capture_output=True, text=True, check=True, env={**os.environ},
+    )  # fmt: skip
+    return json.loads(out.stdout.strip().splitlines()[-1])
+
+
+def _load() -> str:
+    return " ".join(f"{v:.2f}" for v in os.getloadavg())
+
+
+def measure(var_dir: str, keep: bool) -> None:
+    _setup(var_dir)
+    from django.core.management import call_command
+
+    from shop.models import Job
+
+    call_command("migrate", verbosity=0)
+    job = Job.objects.filter(title="Large bench build").first() if keep else None
+    if job is None:
         started = time.perf_counter()
         number = build()
         print(f"built {number} in {time.perf_counter() - started:.1f} s", file=sys.stderr)
-        out = subprocess.run(
-            [sys.executable, __file__, "--child", number],
-            capture_output=True, text=True, check=True, env={**os.environ},
-        )  # fmt: skip
-        figures = json.loads(out.stdout.strip().splitlines()[-1])
-        peak_mb = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024  # KiB on Linux
-    ratio = figures["record_s"] / figures["table_s"]
-    print(f"record render: {figures['record_s']:.2f} s (goal under {GOAL_S:g} s)")
-    print(f"peak memory:   {peak_mb:.0f} MB (goal under {GOAL_MB:g} MB)")
+    else:
+        number = job.number
+        print(f"reusing {number} from {var_dir}", file=sys.stderr)
+    print(f"load average before (1, 5, 15 min): {_load()}  ({os.cpu_count()} CPUs)")
+    records, tables = [], []
+    for _ in range(2):
+        records.append(_run_child("record", number))
+        tables.append(_run_child("table", number))
+    print(f"load average after:                 {_load()}")
+    rec = min(records, key=lambda r: r["wall"])
+    tab = min(tables, key=lambda r: r["wall"])
+    ratio = rec["wall"] / tab["wall"]
+
+    def runs(items, key, fmt):
+        return ", ".join(fmt.format(i[key]) for i in items)
+
+    def verdict(ok: bool) -> str:
+        return "met" if ok else "NOT met"
+
+    print(f"{'figure':<26}{'value':>10}   {'goal':<14}{'':8}runs")
     print(
-        f"plain table:   {figures['table_s']:.2f} s; record / table = {ratio:.2f}"
-        f" (goal at most {GOAL_RATIO:g})"
+        f"{'record render, wall':<26}{rec['wall']:>8.2f} s   {'under ' + f'{GOAL_S:g} s':<14}"
+        f"{verdict(rec['wall'] < GOAL_S):<8}{runs(records, 'wall', '{:.2f} s')}"
     )
-    print(f"record size:   {figures['bytes'] / 1e6:.1f} MB", file=sys.stderr)
+    print(
+        f"{'record render, CPU':<26}{rec['cpu']:>8.2f} s   {'':<14}{'':<8}"
+        f"{runs(records, 'cpu', '{:.2f} s')}"
+    )
+    mb = min(r["mb"] for r in records)
+    print(
+        f"{'record peak memory':<26}{mb:>7.0f} MB   {'under ' + f'{GOAL_MB:g} MB':<14}"
+        f"{verdict(mb < GOAL_MB):<8}{runs(records, 'mb', '{:.0f} MB')}"
+    )
+    print(
+        f"{'plain table, wall':<26}{tab['wall']:>8.2f} s   {'':<14}{'':<8}"
+        f"{runs(tables, 'wall', '{:.2f} s')}"
+    )
+    print(
+        f"{'plain table, CPU':<26}{tab['cpu']:>8.2f} s   {'':<14}{'':<8}"
+        f"{runs(tables, 'cpu', '{:.2f} s')}"
+    )
+    print(
+        f"{'record / table, wall':<26}{ratio:>8.2f} ×   {'at most ' + f'{GOAL_RATIO:g} ×':<14}"
+        f"{verdict(ratio <= GOAL_RATIO):<8}"
+        f"CPU: {rec['cpu'] / tab['cpu']:.2f} ×"
+    )
+    print(
+        f"record: {rec['pages']} pages, {rec['bytes'] / 1e6:.1f} MB;"
+        f" plain table: {tab['pages']} pages"
+    )
+
+
+def main() -> None:
+    if len(sys.argv) == 4 and sys.argv[1] == "--child":
+        _setup(os.environ["AMPWRIGHT_VAR_DIR"])
+        child(sys.argv[2], sys.argv[3])
+        return
+    if len(sys.argv) == 3 and sys.argv[1] == "--keep":
+        var_dir = os.path.abspath(sys.argv[2])
+        os.makedirs(var_dir, exist_ok=True)
+        measure(var_dir, keep=True)
+        return
+    var_dir = tempfile.mkdtemp(prefix="ampwright-bench-")
+    try:
+        measure(var_dir, keep=False)
+    finally:
+        shutil.rmtree(var_dir, ignore_errors=True)
 
 
 if __name__ == "__main__":

@@ -194,3 +194,31 @@ def test_the_signature_box_lies_inside_the_frame_on_the_last_page(job, paper):
         .pages[-1]
         .extract_text()
     )
+
+
+def test_each_schedule_value_names_its_source_by_a_key_printed_under_the_table(pdf, job):
+    from wiring.render import record_data
+
+    text = " ".join(text_of(pdf).split())
+    sizing = record_data(job)["circuits"][0]["sizing"]
+    for source in (sizing["table_source"], sizing["drop_source"], sizing["protection_source"]):
+        assert source in text  # the legend names it once
+    assert "[1]" in text and "by its key in brackets" in text
+
+
+def test_the_torque_log_row_carries_wrench_calibration_technician_and_time(pdf):
+    text = " ".join(text_of(pdf).split())
+    assert "TW-07 · cal. due" in text  # the wrench and its calibration due date
+    assert "Test Technician ·" in text  # who read it, then when
+
+
+def test_the_chart_labels_a_few_loose_ends_and_counts_them_all():
+    from wiring.render.chart import LABELLED_LOOSE, movement_chart_svg
+
+    reading = {"found_loose": True}
+    rows = [
+        {"termination": f"D-{n:03d} from", "moved_pct": 2.0, "retorque": reading} for n in range(40)
+    ]
+    svg = movement_chart_svg(rows)
+    assert svg.count(" loose</text>") == LABELLED_LOOSE
+    assert "40 found loose" in svg and "all marked ✖ in the table" in svg

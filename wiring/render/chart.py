@@ -5,8 +5,11 @@ reader sees at a glance which connections loosened.
 One fixed-size SVG whatever the number of ends (a 600-end job still fits one page): ends
 in schedule order along the x axis, the change in % of spec up the y axis, the spec's
 tolerance band shaded. Ends found loose at retorque are drawn as a cross with the word
-"loose" and their label (a shape and a word, never colour alone); the largest other
-movers are labelled too. Black on white with grey, so it prints on any printer.
+"loose" (a shape and a word, never colour alone); the first few carry their label, and
+when more were found loose the chart says how many and that the table marks each one
+(hundreds of overlapping labels could not be read, and each cost the renderer a text
+run). The largest other movers are labelled too. Black on white with grey, so it prints
+on any printer.
 """
 
 from __future__ import annotations
@@ -16,6 +19,7 @@ from html import escape
 WIDTH, HEIGHT = 680.0, 300.0
 LEFT, RIGHT, TOP, BOTTOM = 56.0, 16.0, 34.0, 46.0
 LABELLED_MOVERS = 6
+LABELLED_LOOSE = 8
 INK, MUTED, BAND = "#111111", "#555555", "#e4e4e4"
 
 
@@ -89,9 +93,13 @@ def movement_chart_svg(torque_log: list[dict], *, tolerance_pct: float = 10.0) -
         _t(LEFT, TOP - 6, f"Grey band: within ±{tolerance_pct:g} % of the first reading", size=8)
     )
     out.append(_t(LEFT, HEIGHT - 26, "Conductor ends in schedule order (circuit tag, end)", size=8))
-    out.append(
-        _t(LEFT, HEIGHT - 12, "× loose = found loose at retorque (turned before the click)", size=8)
-    )
+    key = "× loose = found loose at retorque (turned before the click)"
+    if loose > LABELLED_LOOSE:
+        key += (
+            f"; {loose} found loose, the first {LABELLED_LOOSE} labelled, all marked ✖ in the table"
+        )
+    out.append(_t(LEFT, HEIGHT - 12, key, size=8))
+    labelled_loose = 0
     movers = sorted(
         (i for i, p in enumerate(points) if not p[2] and p[1] is not None),
         key=lambda i: -abs(points[i][1]),
@@ -109,7 +117,10 @@ def movement_chart_svg(torque_log: list[dict], *, tolerance_pct: float = 10.0) -
                 f'M{_n(x - s)} {_n(y + s)}L{_n(x + s)} {_n(y - s)}" stroke="{INK}"'
                 ' stroke-width="2"/>'
             )
-            out.append(_t(x + 6, y - 6, f"{row['termination']} loose", size=8, font_weight="bold"))
+            if labelled_loose < LABELLED_LOOSE:
+                labelled_loose += 1
+                label = f"{row['termination']} loose"
+                out.append(_t(x + 6, y - 6, label, size=8, font_weight="bold"))
             continue
         top, height = (y, mid - y) if value >= 0 else (mid, y - mid)
         out.append(

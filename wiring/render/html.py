@@ -2,7 +2,13 @@
 from `record_data` (the same dict that is embedded as record.json) plus what only the
 printed record carries: the one-line diagram, the torque-movement chart, the QR code to
 the verify page, the drawn signatures and the photos (as data URLs, so the HTML is one
-self-contained document for WeasyPrint and for the preview alike)."""
+self-contained document for WeasyPrint and for the preview alike), and the long tables
+as plain-text cells (cells.py says why).
+
+The diagram and the chart are SVG images (`<img src="data:image/svg+xml;base64,...">`), not
+inline `<svg>`: inline, every one of the diagram's thousands of SVG elements went through
+the HTML style cascade; as an image WeasyPrint reads it with its SVG reader alone, and it
+stays vector (sharp at any zoom)."""
 
 from __future__ import annotations
 
@@ -14,11 +20,11 @@ from django.core.files.storage import default_storage
 from django.template.loader import render_to_string
 from django.utils import timezone
 from django.utils.dateparse import parse_date, parse_datetime
-from django.utils.safestring import mark_safe
 
 from circuits.diagram import job_diagram_svg
 from circuits.system import job_system_report
 from circuits.views.labels import qr_svg
+from wiring.render import cells
 from wiring.render.chart import movement_chart_svg
 from wiring.render.data import record_data_from
 
@@ -52,12 +58,20 @@ def readable(value):
     return out
 
 
+def svg_url(svg: str) -> str:
+    """An SVG document as a data URL for an <img>."""
+    return "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")
+
+
 def _photo_url(name: str) -> str | None:
     """A small JPEG of a stored photo as a data URL; None if it cannot be read."""
     from PIL import Image, UnidentifiedImageError
 
     try:
         with default_storage.open(name) as handle, Image.open(handle) as image:
+            # A JPEG is decoded straight at about the printed size (DCT scaling): a
+            # camera's 12 megapixels are never held in memory for a 54 mm print.
+            image.draft("RGB", (PHOTO_MAX_PX, PHOTO_MAX_PX))
             image = image.convert("RGB")
             image.thumbnail((PHOTO_MAX_PX, PHOTO_MAX_PX))
             buffer = io.BytesIO()
@@ -78,6 +92,11 @@ def record_context(
     for photo in r["photos"]:
         photo["url"] = _photo_url(photo["file"])
     diagram = job_diagram_svg(report, title=f"{job.number} · one-line diagram")
+    schedule, sources = cells.schedule_rows(r["circuits"])
+    for checklist in r["checklists"]:
+        checklist["exceptions"] = cells.checklist_exceptions(checklist["items"])
+    for finding in r["findings"]:
+        finding["text"] = cells.finding_text(finding)
     return {
         "r": r,
         "data": data,
@@ -86,9 +105,13 @@ def record_context(
         "verify_url": verify_url,
         "issued_at": issued_at,
         "issued_text": f"{timezone.localtime(issued_at):%d %b %Y %H:%M}",
-        "diagram_svg": mark_safe(diagram),  # built by circuits.diagram, which escapes text
-        "chart_svg": mark_safe(movement_chart_svg(data["torque_log"])),  # escapes its text
-        "qr_svg": qr_svg(verify_url) if verify_url else "",
+        "schedule_rows": schedule,
+        "sources": sources,
+        "torque_rows": cells.torque_rows(r["torque_log"]),
+        "thermal_rows": cells.thermal_rows(r["thermal"]),
+        "diagram_url": svg_url(diagram),
+        "chart_url": svg_url(movement_chart_svg(data["torque_log"])),
+        "qr_svg": qr_svg(verify_url) if verify_url else "",  # small: inline is cheap
     }
 
 
