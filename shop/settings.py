@@ -151,6 +151,11 @@ else:
             # and the live server thread of the browser tests shares it; one file per
             # test process so two runs side by side never share a database.
             "TEST": {"NAME": VAR_DIR / f"test-ampwright-{os.getpid()}.sqlite3"},
+            # Keep each worker's connection between requests (as for PostgreSQL above):
+            # opening the file and running the PRAGMAs on every request cost more than
+            # the reading the tablet sent.
+            "CONN_MAX_AGE": 60,
+            "CONN_HEALTH_CHECKS": True,
         }
     }
 

@@ -260,37 +260,46 @@ def torque_record_create(
     if moment is not None:
         not_in_future(moment, field="at", what="reading's time", errors=errors)
     note = clean_text(note, field="note", what="note", limit=MAX_NOTE, errors=errors)
+    # What does not depend on the stage's state is read and worked out before the write
+    # transaction: on SQLite an IMMEDIATE transaction holds the database's one write lock
+    # from its first statement, so the work done inside it is what caps how many readings
+    # a second the shop stores. The stage (signed a moment ago?) and the lock are read
+    # inside; the termination's spec and the wrench as they are at the moment of entry.
+    termination = Termination.objects.select_related("circuit__job").get(pk=termination.pk)
+    wrench = TorqueWrench.objects.filter(pk=getattr(wrench, "pk", None)).first()
+    given = {
+        "termination_id": termination.pk,
+        "stage_id": stage.pk,
+        "value": number,
+        "unit": code,
+        "wrench_id": getattr(wrench, "pk", None),
+        "technician_id": technician.pk,
+        "found_loose": found_loose,
+        "supersedes_id": None,
+    }
+    # A resend of a stored reading is answered from the store, whatever has happened to
+    # the stage since, and takes no write lock.
+    stored = _resent(key, given)
+    if stored is not None:
+        return stored
+    if moment is not None:
+        _check_wrench(wrench, on=timezone.localdate(moment), value=number, code=code, errors=errors)
+    photo = check_photo(photo, errors)
+    spec = value_nm = None
+    if termination.torque_value is not None:
+        spec = _spec_of(termination)
+        if number is not None and code is not None:
+            value_nm = to_nm(number, code)
     with transaction.atomic():
-        # Read afresh (and on PostgreSQL lock the stage) so a stage signed, a spec changed
-        # or a wrench recalled a moment ago is what the reading is judged on.
+        # On PostgreSQL the stage row is locked, so a reading and a signature of the same
+        # stage cannot interleave; SQLite runs one writer at a time anyway.
         stage = locked_stage(stage.pk)
-        termination = Termination.objects.select_related("circuit__job").get(pk=termination.pk)
-        wrench = TorqueWrench.objects.filter(pk=getattr(wrench, "pk", None)).first()
-        given = {
-            "termination_id": termination.pk,
-            "stage_id": stage.pk,
-            "value": number,
-            "unit": code,
-            "wrench_id": getattr(wrench, "pk", None),
-            "technician_id": technician.pk,
-            "found_loose": found_loose,
-            "supersedes_id": None,
-        }
-        stored = _resent(key, given)
-        if stored is not None:
-            return stored
         _check_stage(stage, found_loose=found_loose, errors=errors)
         _check_termination(termination, stage, errors)
         check_unlocked(stage.job, errors)
         if moment is not None and stage.accepts_work:
             check_soak(stage, at=moment, errors=errors)
-        if moment is not None:
-            on = timezone.localdate(moment)
-            _check_wrench(wrench, on=on, value=number, code=code, errors=errors)
-        photo = check_photo(photo, errors)
         raise_if(errors)
-        spec = _spec_of(termination)
-        value_nm = to_nm(number, code)
         record = TorqueRecord(
             termination=termination,
             stage=stage,

@@ -22,6 +22,7 @@ from inspections.services import (
 from inspections.services.status import receipt_in_force
 from shop.models import Job
 from shop.views.access import JobAccess
+from wiring.services import OWNER_LINKS_PERM
 
 READINGS_PERM = "inspections.add_torquerecord"
 RUN_PERM = "inspections.add_heatcyclerun"
@@ -161,6 +162,18 @@ def _secondary(panel: StagePanel, job: Job, user, works: bool) -> None:
         actions.append(Action("Temperatures", _url("thermal_readings", job)))
     if user.has_perm(TRAIL_PERM):
         actions.append(Action("Timeline", _url("job_timeline", job)))
+    # The wiring record (wiring/): the signed revisions once approved, a draft preview
+    # before; the stage sheet of a torque stage; the owner's private links for the office.
+    if panel.locked:
+        actions.append(Action("Wiring record", _url("revision_list", job)))
+    else:
+        actions.append(Action("Record preview", _url("record_preview", job)))
+    if not panel.locked and current.takes_torque_readings:
+        actions.append(
+            Action("Stage sheet (PDF)", _url("stage_sheet", job, kind=int(current.kind)))
+        )
+    if user.has_perm(OWNER_LINKS_PERM):
+        actions.append(Action("Owner's link", _url("owner_links", job)))
 
 
 @dataclass(frozen=True)

@@ -258,3 +258,18 @@ def test_a_lead_not_on_the_job_still_writes_it(lead):
     other = make_user(roles.LEAD)
     job = make_job(lead=lead)
     assert "Carry on with the first install" in _page(_client(other), job)
+
+
+def test_the_record_is_reached_from_the_job_page(technician, lead, office_client):
+    job = make_job(lead=lead)
+    job.technicians.add(technician)
+    make_spec_circuit(job)
+    open_page = _page(_client(technician), job)
+    assert reverse("record_preview", args=[job.number]) in open_page  # a draft until approved
+    assert reverse("stage_sheet", args=[job.number, Stage.Kind.FIRST_INSTALL]) in open_page
+    assert reverse("owner_links", args=[job.number]) not in open_page  # the office's
+    assert reverse("owner_links", args=[job.number]) in _page(office_client, job)
+    approved(job, technician=technician, lead=lead, wrench=make_wrench())
+    locked_page = _page(_client(technician), job)
+    assert reverse("revision_list", args=[job.number]) in locked_page
+    assert reverse("record_preview", args=[job.number]) not in locked_page
