@@ -135,3 +135,49 @@ def test_a_wrench_reading_high_against_the_others_on_the_same_kind_is_flagged():
     # C: no other wrench read lugs after C began: nothing to compare, not flagged.
     (window_c,) = drift[c.pk]
     assert window_c["others_n"] == 0 and not window_c["flagged"]
+
+
+# A period counts the readings whose local date (in the current time zone) falls in it,
+# as Django's `__date` lookup compares them (Django 5.2 documentation, QuerySet API
+# reference, "date": with USE_TZ the value is converted to the current time zone first).
+# Santiago de Chile skipped the midnight of 8 September 2024 (00:00 at UTC-4 became
+# 01:00 at UTC-3; IANA time zone database, zone America/Santiago): the day began at
+# 04:00 UTC.
+MIDNIGHTS = [
+    ("Pacific/Auckland", datetime.date(2025, 1, 15), "2025-01-14T11:00:00+00:00"),  # UTC+13
+    ("America/Santiago", datetime.date(2024, 9, 8), "2024-09-08T04:00:00+00:00"),
+]
+
+
+@pytest.mark.parametrize(("zone", "day", "first_instant"), MIDNIGHTS)
+def test_a_period_starts_at_the_first_instant_of_its_local_day(zone, day, first_instant):
+    import zoneinfo
+
+    from circuits.models import Termination
+    from inspections.models import TorqueRecord
+
+    start = datetime.datetime.fromisoformat(first_instant)
+    second = datetime.timedelta(seconds=1)
+    day_after = start + datetime.timedelta(days=1)
+    if zone == "America/Santiago":
+        day_after -= datetime.timedelta(hours=1)  # the 8th was 23 hours long
+    moments = [start - second, start, day_after - second, day_after]
+    tech = make_user(roles.TECHNICIAN)
+    wrench = make_wrench(calibration_due=datetime.date(2099, 1, 1))
+    job = make_job()
+    make_spec_circuit(job)
+    job.technicians.add(tech)
+    install = open_stage(stages_by_kind(job)[Stage.Kind.FIRST_INSTALL])
+    termination = Termination.objects.filter(circuit__job=job).first()
+    with timezone.override(zoneinfo.ZoneInfo(zone)):
+        made = [
+            read(termination, install, "10", technician=tech, wrench=wrench, at=m) for m in moments
+        ]
+        by_period = set(
+            TorqueRecord.objects.filter(queries.Period(day, day).q()).values_list("pk", flat=True)
+        )
+        by_date = set(
+            TorqueRecord.objects.filter(recorded_at__date=day).values_list("pk", flat=True)
+        )
+    # The second before midnight and the first instant of the next day are not in it.
+    assert by_period == by_date == {made[1].pk, made[2].pk}
