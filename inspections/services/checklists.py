@@ -39,9 +39,9 @@ from inspections.services.common import (
     check_photo,
     clean_client_key,
     clean_text,
-    locked_stage,
     raise_if,
     require_perm,
+    shared_stage,
     stage_name,
 )
 from inspections.services.queries import check_soak, current_readings
@@ -352,7 +352,7 @@ def checklist_item_mark(
         add_error(errors, "note", f"Say in the note why the item {why}.")
     item_key = str(item_key or "").strip()
     with transaction.atomic():
-        stage = locked_stage(stage.pk)
+        stage = shared_stage(stage.pk)
         given = {
             "stage_id": stage.pk,
             "item_key": item_key,

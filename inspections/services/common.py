@@ -10,7 +10,7 @@ from decimal import Decimal, InvalidOperation
 
 from django import forms
 from django.core.exceptions import PermissionDenied, ValidationError
-from django.db import models
+from django.db import connection, models
 from django.utils import timezone
 
 from inspections.models import AuditEvent, Stage
@@ -179,6 +179,18 @@ def locked_stage(pk: int) -> Stage:
     a reading and a signature of the same stage cannot interleave (SQLite's IMMEDIATE
     transactions already run one writer at a time). Only the stage row: not the job's."""
     return Stage.objects.select_for_update(of=("self",)).select_related("job").get(pk=pk)
+
+
+def shared_stage(pk: int) -> Stage:
+    """The stage as stored now, for work recorded ON it (a reading, a checklist mark): on
+    PostgreSQL its row is held in share mode until the transaction ends, so any number of
+    tablets record at once while a signature, send-back or approval (which lock the row
+    exclusively, `locked_stage(s)`) waits for them, and they for it. SQLite's IMMEDIATE
+    transactions run one writer at a time anyway."""
+    if connection.vendor == "postgresql":
+        with connection.cursor() as cursor:
+            cursor.execute(f"SELECT 1 FROM {Stage._meta.db_table} WHERE id = %s FOR SHARE", [pk])
+    return Stage.objects.select_related("job").get(pk=pk)
 
 
 def locked_stages(job_id: int) -> dict[int, Stage]:

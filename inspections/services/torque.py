@@ -20,12 +20,12 @@ from inspections.services.common import (
     check_photo,
     clean_client_key,
     clean_text,
-    locked_stage,
     not_in_future,
     parse_decimal,
     parse_moment,
     raise_if,
     require_perm,
+    shared_stage,
 )
 from inspections.services.queries import check_soak
 from inspections.services.status import check_unlocked
@@ -291,9 +291,9 @@ def torque_record_create(
         if number is not None and code is not None:
             value_nm = to_nm(number, code)
     with transaction.atomic():
-        # On PostgreSQL the stage row is locked, so a reading and a signature of the same
-        # stage cannot interleave; SQLite runs one writer at a time anyway.
-        stage = locked_stage(stage.pk)
+        # On PostgreSQL the stage row is held in share mode: readings go in side by side,
+        # and a signature of the same stage (an exclusive lock) cannot interleave with them.
+        stage = shared_stage(stage.pk)
         _check_stage(stage, found_loose=found_loose, errors=errors)
         _check_termination(termination, stage, errors)
         check_unlocked(stage.job, errors)
@@ -362,7 +362,7 @@ def torque_record_correct(
         original = TorqueRecord.objects.select_related(
             "termination__circuit", "wrench", "technician"
         ).get(pk=record.pk)
-        stage = locked_stage(original.stage_id)
+        stage = shared_stage(original.stage_id)
         wrench = TorqueWrench.objects.filter(pk=getattr(wrench, "pk", None)).first()
         found_loose = original.found_loose if found_loose is None else bool(found_loose)
         given = {
