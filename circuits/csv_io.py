@@ -36,6 +36,7 @@ from circuits.models import FOOT_M, Circuit, Colour, Device
 from circuits.services import circuit_create, circuit_update
 from circuits.sizing import UnitError, parse_quantity
 from circuits.sizing.quantity import check_limit
+from circuits.tags import natural_by_tag
 
 MAX_ROWS = 2000
 
@@ -182,7 +183,7 @@ def circuits_to_csv(job) -> str:
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\r\n")
     writer.writerow(COLUMNS)
-    for circuit in job.circuits.for_schedule():
+    for circuit in natural_by_tag(job.circuits.for_schedule()):
         writer.writerow(_row(circuit))
     return out.getvalue()
 

@@ -14,6 +14,7 @@ from django.db.models import ProtectedError
 from django.utils import timezone
 
 from circuits.models import Circuit, Termination, TorqueDefault, Waiver
+from circuits.tags import tag_key
 from inspections.models import ThermalReading, TorqueRecord
 from inspections.services.status import job_is_locked, lock_message
 from shop.models import ShopProfile
@@ -369,8 +370,5 @@ def device_circuit_tags(device) -> list[str]:
     """Tags of the circuits that start or end at the device."""
     from django.db.models import Q
 
-    return list(
-        Circuit.objects.filter(Q(from_device=device) | Q(to_device=device))
-        .order_by("tag")
-        .values_list("tag", flat=True)
-    )
+    tags = Circuit.objects.filter(Q(from_device=device) | Q(to_device=device))
+    return sorted(tags.values_list("tag", flat=True), key=tag_key)

@@ -23,6 +23,7 @@ from circuits.findings import (
 )
 from circuits.models import Circuit, Device, Waiver
 from circuits.rules import RULES
+from circuits.tags import natural_by_tag
 from circuits.waiver_facts import fact_names, finding_facts
 
 # Re-exported for the pages that take the shared types from the report's module.
@@ -113,7 +114,7 @@ def job_system_report(job, *, draft: Circuit | None = None) -> SystemReport:
     """The job's system as stored; with `draft`, an unsaved circuit takes the place of its
     stored self (or joins, when new), for a live preview."""
     devices = list(job.devices.prefetch_related("terminals"))
-    circuits = list(job.circuits.for_schedule())
+    circuits = natural_by_tag(job.circuits.for_schedule())
     if draft is not None:
         circuits = [c for c in circuits if c.pk != draft.pk] + [draft]
     waivers = list(job.waivers.active().select_related("lead", "renews__lead"))

@@ -24,6 +24,7 @@ from django.views.decorators.http import require_GET, require_http_methods
 from circuits.forms import DeviceForm, TerminalFormSet
 from circuits.models import Circuit, Device, Termination
 from circuits.services import device_save
+from circuits.tags import natural_by_tag
 from circuits.views.access import _get_device_for_user, _get_job_for_user
 from circuits.views.removals import device_delete
 from shop.views.errors import bad_request_page
@@ -35,7 +36,7 @@ MAX_ROWS = 1000
 
 
 def _circuits_of(device: Device):
-    return Circuit.objects.filter(Q(from_device=device) | Q(to_device=device)).order_by("tag")
+    return Circuit.objects.filter(Q(from_device=device) | Q(to_device=device))
 
 
 @login_required
@@ -65,7 +66,7 @@ def device_detail(request: HttpRequest, number: str, pk: int) -> HttpResponse:
         "job": job,
         "device": device,
         "terminals": device.terminals.all(),
-        "circuits": _circuits_of(device).select_related("from_device", "to_device"),
+        "circuits": natural_by_tag(_circuits_of(device).select_related("from_device", "to_device")),
         "terminations": landing,
     }
     return render(request, "circuits/device_detail.html", context)

@@ -16,6 +16,7 @@ from django.views.decorators.http import require_GET
 
 from circuits.diagram import size_text
 from circuits.models import Circuit
+from circuits.tags import natural_by_tag
 from circuits.views.access import _get_job_for_user
 from shop.fields import parse_id
 
@@ -67,7 +68,7 @@ def circuit_labels(request: HttpRequest, number: str) -> HttpResponse:
         if circuit_id is None:
             raise Http404("No such circuit.")
         circuits = [get_object_or_404(circuits, pk=circuit_id)]
-    labels = wire_labels(circuits, request.build_absolute_uri)
+    labels = wire_labels(natural_by_tag(circuits), request.build_absolute_uri)
     return render(request, "circuits/labels.html", {"job": job, "labels": labels, "one": one})
 
 

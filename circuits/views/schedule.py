@@ -12,6 +12,7 @@ from django.urls import path
 from django.views.decorators.http import require_GET
 
 from circuits.system import CircuitSizing, job_system_report
+from circuits.tags import tag_key
 from circuits.views.access import _get_job_for_user
 
 _UNKNOWN_LAST = float("inf")
@@ -32,11 +33,11 @@ def _worst_key(row: CircuitSizing) -> tuple:
     return worst.rank if worst is not None else (9, 9)
 
 
-# Sort key of each column: tag as text (the order the job page shows, so zero-padded tags
-# such as D-07 read naturally) and name A to Z; numbers largest first; worst finding most
+# Sort key of each column: tag in natural order (D-2 before D-10, circuits.tags) and name
+# A to Z; numbers largest first; worst finding most
 # serious first. Rows without a value (a circuit that cannot be sized) go last.
 SORTS: dict[str, tuple[str, Callable[[CircuitSizing], object]]] = {
-    "tag": ("tag", lambda r: r.circuit.tag),
+    "tag": ("tag", lambda r: tag_key(r.circuit.tag)),
     "name": ("name", lambda r: (r.circuit.name.lower(), r.circuit.tag)),
     "current": ("design current", lambda r: -float(r.circuit.design_current_a)),
     "length": ("length", lambda r: -r.circuit.length_m),
@@ -55,7 +56,7 @@ DEFAULT_SORT = "tag"
 
 def sort_rows(rows: list[CircuitSizing], sort: str) -> list[CircuitSizing]:
     _, key = SORTS.get(sort, SORTS[DEFAULT_SORT])
-    by_tag = sorted(rows, key=lambda r: r.circuit.tag)
+    by_tag = sorted(rows, key=lambda r: tag_key(r.circuit.tag))
     return sorted(by_tag, key=key)  # stable: ties stay in tag order
 
 

@@ -31,6 +31,7 @@ from django.utils import timezone
 
 from circuits.models import Circuit, Termination
 from circuits.rules.slack import slack
+from circuits.tags import natural_by_tag
 from inspections.models import AuditEvent, ChecklistMark, ShopChecklistItem, Stage, TorqueRecord
 from inspections.services.common import (
     Errors,
@@ -261,7 +262,7 @@ def checklist_items_for(*, stage: Stage) -> list[ChecklistItem]:
                 )
             )
     if stage.kind == Stage.Kind.FIRST_INSTALL:
-        for circuit in Circuit.objects.filter(job=stage.job_id).for_schedule():
+        for circuit in natural_by_tag(Circuit.objects.filter(job=stage.job_id).for_schedule()):
             items.extend(_circuit_items(circuit))
     marked_shop_items = {mark.shop_item_id for mark in marks.values() if mark.shop_item_id}
     for shop_item in ShopChecklistItem.objects.filter(stage_kind=stage.kind):

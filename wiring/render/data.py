@@ -19,6 +19,7 @@ from circuits.models import Circuit, Device
 from circuits.sizing.findings import SOURCES
 from circuits.sizing.report import CAUTION
 from circuits.system import CircuitSizing, SystemReport, job_system_report
+from circuits.tags import tag_key
 from shop.models import ShopProfile
 from wiring.render.evidence import evidence_data
 
@@ -287,7 +288,9 @@ def record_data_from(
         "vehicle": vehicle,
         "system": _summary(report, vehicle),
         "devices": [_device(d) for d in devices],
-        "circuits": [_circuit(row) for row in sorted(report.circuits, key=lambda r: r.circuit.tag)],
+        "circuits": [
+            _circuit(row) for row in sorted(report.circuits, key=lambda r: tag_key(r.circuit.tag))
+        ],
         "findings": _findings(report),
         **evidence_data(job),
         "cautions": list(CAUTIONS),
