@@ -1,20 +1,17 @@
-"""The technician's torque pages: the work list, the entry, corrections, the offline
-queue's endpoint and the label scan. Each as anonymous, wrong role and right role; bad
+"""The technician's torque pages: the work list, the entry, corrections and the label
+scan (the offline queue's endpoint is in test_views_torque_sync.py). Each as anonymous,
+wrong role and right role; bad
 input gets a message beside its field and saves nothing; a resend is stored once."""
 
 from __future__ import annotations
 
-import json
-import math
 import uuid
-from decimal import Decimal
 
 import pytest
 from django.urls import reverse
 
 from circuits.models import Device
 from inspections.models import Stage, TorqueRecord
-from inspections.units import to_nm
 from shop import roles
 from tests.factories import make_job, make_user
 from tests.inspections.factories import (
@@ -23,28 +20,19 @@ from tests.inspections.factories import (
     make_wrench,
     read,
 )
-
-# Conversion factors, NIST SP 811 (2008), Appendix B.9 (torque / moment of force):
-LBF_IN_NM = 0.1129848  # 1 lbf·in = 1.129 848 E-01 N·m
-LBF_FT_NM = 1.355818  # 1 lbf·ft = 1.355 818 E+00 N·m
-KGF_CM_NM = 0.0980665  # 1 kgf·cm = 9.806 65 E-02 N·m (kgf exact: 9.806 65 N, NIST SP 811 B.9)
+from tests.inspections.torque_pages import (
+    LBF_IN_NM,
+    payload,
+    signed_in,
+    sync,
+)
 
 
 @pytest.fixture
-def job(db, technician):
-    job = make_job()
+def job(job, technician):
+    """The conftest's job, with the technician assigned to it."""
     job.technicians.add(technician)
     return job
-
-
-@pytest.fixture
-def install(job):
-    return Stage.objects.get(job=job, kind=Stage.Kind.FIRST_INSTALL)
-
-
-def _client(client, user):
-    client.force_login(user)
-    return client
 
 
 def _entry(job, termination) -> str:
@@ -83,7 +71,7 @@ def test_work_list_says_progress_in_words_and_groups_by_device_in_walking_order(
     Device.objects.filter(pk=first.pk).update(walking_order=2)
     low = circuit.terminations.filter(end="from").first()
     read(low, install, "5", technician=technician, wrench=wrench)
-    response = _client(client, technician).get(reverse("stage_work", args=[job.number]))
+    response = signed_in(client, technician).get(reverse("stage_work", args=[job.number]))
     html = response.content.decode()
     assert response.status_code == 200
     assert "1 of 4 terminations read, 1 out of tolerance" in html
@@ -97,7 +85,7 @@ def test_work_list_says_progress_in_words_and_groups_by_device_in_walking_order(
 def test_work_list_offers_no_entry_or_reorder_to_the_office(client, job, install, office, wrench):
     circuit = make_spec_circuit(job)
     termination = circuit.terminations.first()
-    html = _client(client, office).get(reverse("stage_work", args=[job.number])).content.decode()
+    html = signed_in(client, office).get(reverse("stage_work", args=[job.number])).content.decode()
     assert _entry(job, termination) not in html
     assert 'id="pending-readings"' in html
 
@@ -105,7 +93,9 @@ def test_work_list_offers_no_entry_or_reorder_to_the_office(client, job, install
 def test_a_stranger_sees_the_list_without_entry_links(client, job, install):
     termination = make_spec_circuit(job).terminations.first()
     stranger = make_user(roles.TECHNICIAN)
-    html = _client(client, stranger).get(reverse("stage_work", args=[job.number])).content.decode()
+    html = (
+        signed_in(client, stranger).get(reverse("stage_work", args=[job.number])).content.decode()
+    )
     assert _entry(job, termination) not in html
     assert reverse("walking_order", args=[job.number]) not in html
 
@@ -128,7 +118,7 @@ def test_entry_needs_sign_in_and_refuses_office_and_strangers(client, job, insta
 def test_a_termination_of_another_job_is_not_found(client, job, install, technician):
     other = make_job()
     foreign = make_spec_circuit(other).terminations.first()
-    response = _client(client, technician).get(_entry(job, foreign))
+    response = signed_in(client, technician).get(_entry(job, foreign))
     assert response.status_code == 404
 
 
@@ -136,7 +126,7 @@ def test_entry_has_the_numeric_keypad_field_units_and_a_server_made_key(
     client, job, install, technician, wrench
 ):
     termination = make_spec_circuit(job).terminations.first()
-    html = _client(client, technician).get(_entry(job, termination)).content.decode()
+    html = signed_in(client, technician).get(_entry(job, termination)).content.decode()
     assert 'inputmode="decimal"' in html
     for label in ("N·m", "lbf·in", "lbf·ft", "kgf·cm"):
         assert f">{label}</option>" in html
@@ -149,7 +139,7 @@ def test_a_reading_is_saved_and_the_next_unread_termination_opens(
 ):
     circuit = make_spec_circuit(job)
     rows = list(circuit.terminations.order_by("end", "polarity", "pk"))
-    response = _post_reading(_client(client, technician), job, rows[0], wrench=wrench)
+    response = _post_reading(signed_in(client, technician), job, rows[0], wrench=wrench)
     record = TorqueRecord.objects.get()
     assert response.status_code == 302
     assert response["Location"].startswith(_entry(job, rows[1]))
@@ -165,7 +155,7 @@ def test_next_follows_the_walking_order_of_devices(client, job, install, technic
     Device.objects.filter(pk=from_device.pk).update(walking_order=2)
     on_to = list(circuit.terminations.filter(end="to").order_by("polarity"))
     on_from = list(circuit.terminations.filter(end="from").order_by("polarity"))
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     # The last termination on the first device in the vehicle leads to the next device.
     _post_reading(client, job, on_to[0], wrench=wrench)
     response = _post_reading(client, job, on_to[1], wrench=wrench)
@@ -175,7 +165,7 @@ def test_next_follows_the_walking_order_of_devices(client, job, install, technic
 def test_after_the_last_reading_the_work_list_opens(client, job, install, technician, wrench):
     circuit = make_spec_circuit(job)
     terminations = list(circuit.terminations.all())
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     for termination in terminations[:-1]:
         read(termination, install, "10", technician=technician, wrench=wrench)
     response = _post_reading(client, job, terminations[-1], wrench=wrench)
@@ -186,7 +176,7 @@ def test_an_out_of_tolerance_reading_is_saved_as_such_with_a_correct_link(
     client, job, install, technician, wrench
 ):
     termination = make_spec_circuit(job).terminations.first()
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     response = _post_reading(client, job, termination, value="12", wrench=wrench)
     record = TorqueRecord.objects.get()
     assert record.result == TorqueRecord.Result.HIGH
@@ -216,7 +206,7 @@ def test_bad_input_gets_a_message_beside_the_field_and_saves_nothing(
 ):
     termination = make_spec_circuit(job).terminations.first()
     response = _post_reading(
-        _client(client, technician), job, termination, value=value, unit=unit, wrench=wrench
+        signed_in(client, technician), job, termination, value=value, unit=unit, wrench=wrench
     )
     assert response.status_code == 200
     html = response.content.decode()
@@ -228,7 +218,7 @@ def test_bad_input_gets_a_message_beside_the_field_and_saves_nothing(
 
 def test_no_wrench_chosen_is_refused_beside_the_wrench(client, job, install, technician):
     termination = make_spec_circuit(job).terminations.first()
-    response = _post_reading(_client(client, technician), job, termination)
+    response = _post_reading(signed_in(client, technician), job, termination)
     html = response.content.decode()
     assert "Choose the wrench you used." in html[html.index('id="wrench_error"') :][:300]
     assert not TorqueRecord.objects.exists()
@@ -236,7 +226,7 @@ def test_no_wrench_chosen_is_refused_beside_the_wrench(client, job, install, tec
 
 def test_a_double_submit_of_the_same_form_is_stored_once(client, job, install, technician, wrench):
     termination = make_spec_circuit(job).terminations.first()
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     key = str(uuid.uuid4())
     first = _post_reading(client, job, termination, wrench=wrench, client_key=key)
     again = _post_reading(client, job, termination, wrench=wrench, client_key=key)
@@ -251,7 +241,7 @@ def test_the_entry_remembers_the_technician_s_last_unit_and_wrench(
     circuit = make_spec_circuit(job)
     first, second = list(circuit.terminations.all())[:2]
     read(first, install, "88.5", unit="lbf*in", technician=technician, wrench=other_wrench)
-    html = _client(client, technician).get(_entry(job, second)).content.decode()
+    html = signed_in(client, technician).get(_entry(job, second)).content.decode()
     assert 'value="lbf*in"' in html.split("selected>lbf·in<")[0][-200:]
     assert f'<option value="{other_wrench.pk}" selected>' in html
     # The spec is shown in the remembered unit: 10 N·m / 0.1129848 = 88.51 lbf·in
@@ -262,7 +252,7 @@ def test_the_entry_remembers_the_technician_s_last_unit_and_wrench(
 
 def test_a_lead_can_record_on_any_job(client, job, install, lead, wrench):
     termination = make_spec_circuit(job).terminations.first()
-    response = _post_reading(_client(client, lead), job, termination, wrench=wrench)
+    response = _post_reading(signed_in(client, lead), job, termination, wrench=wrench)
     assert response.status_code == 302
     assert TorqueRecord.objects.get().technician == lead
 
@@ -273,7 +263,7 @@ def test_found_loose_is_a_switch_at_retorque_only(client, job, technician, wrenc
     through_install(job, technician=technician, wrench=wrench)
     log_soaked_run(job, technician)
     termination = job.circuits.first().terminations.first()
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     html = client.get(_entry(job, termination)).content.decode()
     assert 'type="checkbox" role="switch" name="found_loose"' in html
     response = _post_reading(
@@ -288,7 +278,7 @@ def test_a_locked_job_refuses_readings(client, job, technician, lead, wrench):
     approved(job, technician=technician, lead=lead, wrench=wrench)
     termination = job.circuits.first().terminations.first()
     before = TorqueRecord.objects.count()
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     html = client.get(_entry(job, termination)).content.decode()
     assert 'name="value"' not in html  # no form to fill in
     response = _post_reading(client, job, termination, wrench=wrench)
@@ -305,7 +295,7 @@ def test_a_correction_needs_a_reason_and_takes_the_old_reading_s_place(
     termination = make_spec_circuit(job).terminations.first()
     wrong = read(termination, install, "21", technician=technician, wrench=wrench)
     url = reverse("torque_correct", args=[job.number, wrong.pk])
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     assert client.get(url).status_code == 200
     data = {"value": "12", "unit": "N*m", "wrench": str(wrench.pk), "client_key": "k-1"}
     refused = client.post(url, {**data, "reason": ""})
@@ -337,143 +327,6 @@ def test_corrections_are_refused_to_office_strangers_and_for_another_job(
     assert TorqueRecord.objects.count() == 1
 
 
-# ---- the offline queue's endpoint ----
-
-
-def _sync(client, job, readings, **headers):
-    return client.post(
-        reverse("torque_sync", args=[job.number]),
-        data=json.dumps({"readings": readings}),
-        content_type="application/json",
-        **headers,
-    )
-
-
-def _payload(termination, wrench, **fields):
-    return {
-        "key": fields.pop("key", str(uuid.uuid4())),
-        "termination": termination.pk,
-        "stage": int(Stage.Kind.FIRST_INSTALL),
-        "value": "10",
-        "unit": "N*m",
-        "wrench": wrench.pk if wrench else None,
-        "found_loose": False,
-        "note": "",
-        **fields,
-    }
-
-
-def test_sync_stores_a_reading_once_however_often_it_is_sent(
-    client, job, install, technician, wrench
-):
-    termination = make_spec_circuit(job).terminations.first()
-    client = _client(client, technician)
-    reading = _payload(termination, wrench, key="tablet-1:reading-1")
-    first = _sync(client, job, [reading]).json()["results"][0]
-    again = _sync(client, job, [reading, reading]).json()["results"]
-    assert first["status"] == "stored" and first["result"] == "ok"
-    assert [r["status"] for r in again] == ["stored", "stored"]
-    assert {r["record"] for r in again} == {first["record"]}
-    assert TorqueRecord.objects.count() == 1
-
-
-def test_sync_answers_each_reading_stored_or_refused_with_its_message(
-    client, job, install, technician, wrench
-):
-    terminations = list(make_spec_circuit(job).terminations.all())
-    foreign = make_spec_circuit(make_job()).terminations.first()
-    readings = [
-        _payload(terminations[0], wrench, value="7"),
-        _payload(terminations[1], wrench, value="abc"),
-        _payload(terminations[2], wrench, unit="furlong"),
-        _payload(foreign, wrench),
-        _payload(terminations[3], None),
-    ]
-    results = _sync(_client(client, technician), job, readings).json()["results"]
-    assert [r["status"] for r in results] == ["stored", "refused", "refused", "refused", "refused"]
-    assert results[0]["result"] == "low" and "Low by 3 N·m" in results[0]["message"]
-    assert "value" in results[1]["errors"] and results[1]["record"] is None
-    assert "unit" in results[2]["errors"]
-    assert "termination" in results[3]["errors"]
-    assert "wrench" in results[4]["errors"]
-    assert TorqueRecord.objects.count() == 1
-
-
-@pytest.mark.parametrize(
-    "body",
-    [
-        "not json",
-        json.dumps([]),
-        json.dumps({"readings": "x"}),
-        json.dumps({"readings": [1]}),
-        json.dumps({"readings": [{"key": "k", "termination": "1"}]}),
-        json.dumps({"readings": [{"key": "k", "termination": True, "stage": 1}]}),
-        json.dumps({"readings": [{"key": "k", "termination": 2**70, "stage": 1, "value": "1"}]}),
-    ],
-)
-def test_sync_answers_a_malformed_request_400_and_stores_nothing(
-    client, job, install, technician, body
-):
-    response = _client(client, technician).post(
-        reverse("torque_sync", args=[job.number]), data=body, content_type="application/json"
-    )
-    assert response.status_code == 400
-    assert "error" in response.json()
-    assert not TorqueRecord.objects.exists()
-
-
-def test_sync_takes_at_most_fifty_readings(client, job, install, technician, wrench):
-    termination = make_spec_circuit(job).terminations.first()
-    readings = [_payload(termination, wrench) for _ in range(51)]
-    response = _sync(_client(client, technician), job, readings)
-    assert response.status_code == 400
-    assert not TorqueRecord.objects.exists()
-
-
-def test_sync_is_post_only_and_checks_role_and_assignment(client, job, install, wrench):
-    termination = make_spec_circuit(job).terminations.first()
-    url = reverse("torque_sync", args=[job.number])
-    assert "/login/" in _sync(client, job, [_payload(termination, wrench)])["Location"]
-    client.force_login(make_user(roles.OFFICE))
-    assert _sync(client, job, [_payload(termination, wrench)]).status_code == 403
-    client.force_login(make_user(roles.TECHNICIAN))
-    response = _sync(client, job, [_payload(termination, wrench)])
-    assert response.status_code == 403 and "not assigned" in response.json()["error"]
-    assert client.get(url).status_code == 405
-    assert not TorqueRecord.objects.exists()
-
-
-def test_sync_refuses_readings_on_a_locked_job(client, job, technician, lead, wrench):
-    approved(job, technician=technician, lead=lead, wrench=wrench)
-    termination = job.circuits.first().terminations.first()
-    before = TorqueRecord.objects.count()
-    result = _sync(_client(client, technician), job, [_payload(termination, wrench)]).json()
-    assert result["results"][0]["status"] == "refused"
-    assert TorqueRecord.objects.count() == before
-
-
-@pytest.mark.parametrize(
-    ("unit", "value", "nm_per_unit"),
-    [
-        ("lbf*in", "88.5", LBF_IN_NM),  # NIST SP 811, B.9
-        ("lbf*ft", "7.4", LBF_FT_NM),  # NIST SP 811, B.9
-        ("kgf*cm", "102", KGF_CM_NM),  # NIST SP 811, B.9
-    ],
-)
-def test_sync_converts_each_unit_with_the_nist_factor(
-    client, job, install, technician, wrench, unit, value, nm_per_unit
-):
-    termination = make_spec_circuit(job).terminations.first()
-    result = _sync(
-        _client(client, technician), job, [_payload(termination, wrench, value=value, unit=unit)]
-    ).json()["results"][0]
-    record = TorqueRecord.objects.get(pk=result["record"])
-    assert record.unit == unit and record.value == Decimal(value)
-    assert math.isclose(record.value_nm, float(value) * nm_per_unit, rel_tol=1e-6)
-    assert math.isclose(to_nm(1, unit), nm_per_unit, rel_tol=1e-6)
-    assert result["result"] == "ok"  # all three are within 10 N·m ±10 %
-
-
 # ---- the label scan ----
 
 
@@ -483,7 +336,7 @@ def test_a_label_scan_opens_the_first_unread_termination_of_that_end(
     circuit = make_spec_circuit(job)
     to_ends = list(circuit.terminations.filter(end="to").order_by("polarity"))
     read(to_ends[0], install, "10", technician=technician, wrench=wrench)
-    response = _client(client, technician).get(reverse("label_scan", args=[circuit.pk, "to"]))
+    response = signed_in(client, technician).get(reverse("label_scan", args=[circuit.pk, "to"]))
     assert response.status_code == 302
     assert response["Location"] == _entry(job, to_ends[1])
 
@@ -493,7 +346,7 @@ def test_a_label_scan_without_an_open_torque_stage_lands_on_the_circuit(
 ):
     approved(job, technician=technician, lead=lead, wrench=wrench)
     circuit = job.circuits.first()
-    response = _client(client, technician).get(reverse("label_scan", args=[circuit.pk, "from"]))
+    response = signed_in(client, technician).get(reverse("label_scan", args=[circuit.pk, "from"]))
     assert response["Location"] == circuit.get_absolute_url()
 
 
@@ -524,7 +377,7 @@ def test_hostile_input_in_any_field_never_fails_the_page(
     """Careless or hostile text in any field: a plain answer (never a server error, markup
     escaped), and a NUL, which the database cannot store, saves nothing."""
     termination = make_spec_circuit(job).terminations.first()
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     data = {
         "value": "10",
         "unit": "N*m",
@@ -541,10 +394,10 @@ def test_hostile_input_in_any_field_never_fails_the_page(
         assert not TorqueRecord.objects.exists()
     if field in ("value", "unit", "note", "client_key"):
         name = "key" if field == "client_key" else field
-        sync = _sync(client, job, [_payload(termination, wrench, **{name: hostile})])
-        assert sync.status_code == 200
+        answer = sync(client, job, [payload(termination, wrench, **{name: hostile})])
+        assert answer.status_code == 200
         if "\x00" in hostile:
-            assert sync.json()["results"][0]["status"] == "refused"
+            assert answer.json()["results"][0]["status"] == "refused"
     record = TorqueRecord.objects.first()
     if record is not None:
         correct = client.post(
@@ -564,7 +417,7 @@ def test_with_htmx_a_save_answers_the_next_entry_with_the_result(
     client, job, install, technician, wrench
 ):
     rows = list(make_spec_circuit(job).terminations.order_by("end", "polarity", "pk"))
-    client = _client(client, technician)
+    client = signed_in(client, technician)
     response = client.post(
         _entry(job, rows[0]),
         {
