@@ -11,6 +11,17 @@ One column set both ways (`COLUMNS`, documented in `COLUMN_HELP` and on the impo
   quantity), with the same ranges: `12 V`, `20 A`, `90 °C` and a decimal comma are read;
   NaN, infinities, exponents beyond e±6 and values outside the field's range are errors.
 - Devices and terminals are named as recorded on the job; they must exist already.
+  `protection_device` names the fuse or breaker holder (or external supply) at one end of
+  the run whose fuse or breaker is the circuit's protection; its rating and type are read
+  from that device, and `protection_type` is then `none` (an empty cell means that too).
+- Each conductor's colour is its insulation (`bare` for a bare earth); a re-marking has
+  its own three columns per conductor (`marking_a_method`: tape, heat_shrink or
+  printed_band; `marking_a_colour`; `marking_a_ends`: from, to or both).
+- Files from before re-marking had its own columns carry `tape_remarked`; it is still read:
+  `yes` becomes a tape re-marking at both ends of the conductor the 0006 migration picks
+  (the earth of an earth-only or bonding circuit, the negative of a negative-only one,
+  else the positive / line), in that conductor's colour, unless the row gives that
+  conductor's marking columns.
 - Row numbers count the header as row 1, as a spreadsheet shows them.
 - An import creates circuits with new tags and updates those whose tag exists; a column
   left out keeps each updated circuit's value (a new circuit takes the default), and an
@@ -28,82 +39,43 @@ import io
 from dataclasses import dataclass, field
 from decimal import Decimal
 
-from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
+from django.core.exceptions import ValidationError
 from django.db import transaction
 
+from circuits.csv_columns import (
+    _BOOLEANS,
+    _CHOICES,
+    _FIELD_COLUMN,
+    _FORMULA_START,
+    _LIMITED,
+    COLUMN_HELP,
+    COLUMNS,
+    LEGACY_COLUMNS,
+    REQUIRED,
+)
 from circuits.entry import parse_length_entry
-from circuits.models import FOOT_M, Circuit, Colour, Device
+from circuits.models import FOOT_M, Circuit, Device, MarkingEnds, MarkingMethod
 from circuits.services import circuit_create, circuit_update
 from circuits.sizing import UnitError, parse_quantity
 from circuits.sizing.quantity import check_limit
 from circuits.tags import natural_by_tag
 
-MAX_ROWS = 2000
-
-_BOOLEANS = [
-    "continuous", "critical", "tinned", "engine_space", "splice", "tape_remarked",
-    "service_loop_confirmed",
-]  # fmt: skip
-_CHOICES = {
-    "role": Circuit.Role,
-    "conductors": Circuit.Conductors,
-    "construction": Circuit.Construction,
-    "protection_type": Circuit.ProtectionType,
-    "colour_a": Colour,
-    "colour_b": Colour,
-    "colour_earth": Colour,
-    "colour_after_splice": Colour,
-}
-# (column, what it holds): the order of the export and of the import page's table.
-COLUMN_HELP: list[tuple[str, str]] = [
-    ("tag", "Unique within the job, e.g. D-07. Required."),
-    ("name", "What the circuit feeds. Required."),
-    ("role", "interconnect, main_feed, dc_branch, charging, shore, ac_branch, bonding."),
-    ("from_device", "Device name as recorded on the job. Required."),
-    ("from_terminal", "Terminal name on the from-device, or empty."),
-    ("to_device", "Device name as recorded on the job. Required."),
-    ("to_terminal", "Terminal name on the to-device, or empty."),
-    ("nominal_voltage", "Volts, e.g. 12. Required."),
-    ("design_current_a", "Amps, e.g. 20. Required."),
-    ("continuous", "yes / no: runs 3 hours or more."),
-    ("critical", "yes / no: critical load (3 % drop limit)."),
-    ("length", "One-way length with its unit: 3.5 m or 12 ft. Required."),
-    ("conductor_size", "Trade notation: 10 AWG, 4/0, 35 mm². Required."),
-    ("conductors", "pair, pos, neg, ac or earth (default pair)."),
-    ("parallel", "Conductors in parallel, 1 to 8 (default 1)."),
-    ("construction", "fine, standard, solid or cord (default fine)."),
-    ("tinned", "yes / no (default yes)."),
-    ("insulation_c", "Insulation rating in °C: 60, 75, 80, 90, 105, 125 or 200 (default 105)."),
-    ("engine_space", "yes / no."),
-    ("bundled", "Current-carrying conductors bundled, including its own (default 1)."),
-    ("colour_a", "Positive / line colour: red, black, yellow, white, blue, brown, green, …"),
-    ("colour_b", "Negative / neutral colour."),
-    ("colour_earth", "Earth colour, e.g. green_yellow."),
-    ("splice", "yes / no: the run has a splice."),
-    ("colour_after_splice", "Positive / line colour beyond the splice."),
-    ("tape_remarked", "yes / no: re-marked with tape."),
-    ("protection_type", "none, fuse or breaker (default fuse)."),
-    ("protection_a", "Rating in amps; empty when protection_type is none."),
-    ("protection_distance_m", "Distance of the protection from the source, metres."),
-    ("service_loop_confirmed", "yes / no."),
-    ("notes", "Free text."),
+# The column tables live in circuits.csv_columns; the import page takes them from here.
+__all__ = [
+    "COLUMNS",
+    "COLUMN_HELP",
+    "LEGACY_COLUMNS",
+    "MAX_ROWS",
+    "REQUIRED",
+    "CsvFileError",
+    "ImportResult",
+    "RowError",
+    "circuits_from_csv",
+    "circuits_to_csv",
+    "read_upload",
 ]
-COLUMNS = [name for name, _ in COLUMN_HELP]
-REQUIRED = [
-    "tag", "name", "role", "from_device", "to_device", "nominal_voltage",
-    "design_current_a", "length", "conductor_size",
-]  # fmt: skip
-_TEXT = ["tag", "name", "from_device", "from_terminal", "to_device", "to_terminal"]
-_FORMULA_START = ("=", "+", "-", "@")
-# Free-text columns and the most characters their model field holds (choice columns are
-# matched against their values and labels instead).
-_LIMITED = {
-    f.name: f.max_length
-    for f in Circuit._meta.get_fields()
-    if getattr(f, "max_length", None) and f.name in COLUMNS and not f.choices
-}
-# Model field -> the CSV column its errors belong to.
-_FIELD_COLUMN = {"length_m": "length", "length_unit": "length", NON_FIELD_ERRORS: None}
+
+MAX_ROWS = 2000
 
 
 class CsvFileError(ValueError):
@@ -159,6 +131,7 @@ def _length(circuit: Circuit) -> str:
 
 def _row(circuit: Circuit) -> list[str]:
     values = {
+        "protection_device": circuit.protection_device.name if circuit.protection_device else "",
         "from_device": circuit.from_device.name,
         "from_terminal": circuit.from_terminal.name if circuit.from_terminal else "",
         "to_device": circuit.to_device.name,
@@ -315,16 +288,19 @@ def _convert(cells: dict[str, str], devices: _Devices) -> tuple[dict, list[tuple
     """Model field values from one row's cells; (column, message) for each bad cell."""
     fields: dict[str, object] = {}
     errors: list[tuple[str, str]] = []
+    taped = False
     for column, text in cells.items():
         try:
             if too_long := _too_long(column, text):
                 raise ValueError(too_long)
-            if not text:
+            if column == "tape_remarked":
+                taped = _boolean(text) if text else False
+            elif not text:
                 if column in REQUIRED:
                     raise ValueError("required")
                 model_field = Circuit._meta.get_field(column)
                 fields[column] = None if model_field.null else model_field.get_default()
-            elif column in ("from_device", "to_device"):
+            elif column in ("from_device", "to_device", "protection_device"):
                 fields[column] = devices.get(text)
             elif column in ("from_terminal", "to_terminal"):
                 device = fields.get(column.replace("terminal", "device"))
@@ -346,13 +322,35 @@ def _convert(cells: dict[str, str], devices: _Devices) -> tuple[dict, list[tuple
             errors.append((column, str(exc)))
     if "nominal_voltage" not in dict(errors) and (message := _voltage_for_role(fields)):
         errors.append(("nominal_voltage", message))
+    if isinstance(fields.get("protection_device"), Device) and not cells.get("protection_type"):
+        # The protection is the device's; the circuit's own in-line fields stay empty.
+        fields["protection_type"] = Circuit.ProtectionType.NONE
+    if taped:
+        _legacy_tape(fields, cells)
     return fields, errors
+
+
+def _legacy_tape(fields: dict, cells: dict[str, str]) -> None:
+    """An old file's tape_remarked = yes, read as the 0006 migration reads the old tick."""
+    conductors, role_name = fields.get("conductors", ""), fields.get("role", "")
+    if conductors == Circuit.Conductors.EARTH or role_name == Circuit.Role.BONDING:
+        role = "earth"
+    else:
+        role = "b" if conductors == Circuit.Conductors.NEGATIVE else "a"
+    if any(cells.get(f"marking_{role}_{part}") for part in ("method", "colour", "ends")):
+        return  # the row says how this conductor is marked
+    colour = fields.get("colour_earth" if role == "earth" else f"colour_{role}") or ""
+    if role == "earth" and not colour:
+        colour = fields.get("colour_a") or ""
+    fields[f"marking_{role}_method"] = MarkingMethod.TAPE
+    fields[f"marking_{role}_colour"] = colour
+    fields[f"marking_{role}_ends"] = MarkingEnds.BOTH
 
 
 def _header(row: list[str]) -> tuple[list[str], list[RowError]]:
     names = [cell.strip().lower() for cell in row]
     errors = []
-    unknown = [n for n in names if n not in COLUMNS]
+    unknown = [n for n in names if n not in COLUMNS and n not in LEGACY_COLUMNS]
     if unknown:
         errors.append(RowError(1, None, f"unknown columns: {', '.join(unknown)}"))
     missing = [n for n in REQUIRED if n not in names]

@@ -1,12 +1,14 @@
 """The one-line diagram of a job's electrical system, drawn as one self-contained SVG.
 
-Devices sit in three tiers: sources at the top, distribution in the middle, loads at the
-bottom (loads wrap onto more rows when wide). A circuit is an orthogonal line: it leaves
-the upper device's bottom edge, crosses the channel below that row on a lane of its own
-and enters the lower device from above, where the band over the device carries its label
-(tag, size × parallel, protection, worst finding). A circuit between two devices of one
-row dips below the row on a labelled lane. A line that must pass a whole row goes down
-through a gap between its boxes.
+Devices sit in tiers: sources at the top, distribution in the middle, loads at the
+bottom (loads wrap onto more rows when wide), all inside a dashed outline, the vehicle's
+boundary; an external supply (a pedestal, a generator, a building socket) sits above it,
+outside the vehicle, and its shore cord crosses the boundary. A circuit is an orthogonal
+line: it leaves the upper device's bottom edge, crosses the channel below that row on a
+lane of its own and enters the lower device from above, where the band over the device
+carries its label (tag, size × parallel, protection, worst finding). A circuit between
+two devices of one row dips below the row on a labelled lane. A line that must pass a
+whole row goes down through a gap between its boxes.
 
 Plain Python: the SVG is text with every piece of data escaped, styled by attributes only
 (no stylesheet, font or file to fetch), so the same markup works inline on a page, as a
@@ -23,8 +25,11 @@ from xml.sax.saxutils import escape, quoteattr
 from circuits.diagram_layout import (
     BAND_H,
     BOX_H,
+    DISTRIBUTION,
     LABEL_CHARS,
     MARGIN,
+    OUTSIDE,
+    SOURCES,
     TIER_NAMES,
     _Box,
     _layout,
@@ -79,10 +84,13 @@ def size_text(circuit: Circuit) -> str:
 
 
 def protection_text(circuit: Circuit) -> str:
-    if circuit.protection_type == Circuit.ProtectionType.NONE or circuit.protection_a is None:
+    """'250 A fuse', '30 A breaker', 'no protection', from the protection's one home (a
+    device's rating or the circuit's own); the device is named in the line's tooltip."""
+    protection = circuit.protection
+    if not protection.fitted or protection.rating_a is None:
         return "no protection"
-    kind = "breaker" if circuit.protection_type == Circuit.ProtectionType.BREAKER else "fuse"
-    return f"{circuit.protection_a.normalize():f} A {kind}"
+    kind = "breaker" if protection.kind == Circuit.ProtectionType.BREAKER else "fuse"
+    return f"{protection.rating_a.normalize():f} A {kind}"
 
 
 def _mark(findings: list[SystemFinding], error: str | None) -> tuple[str, str] | None:
@@ -157,8 +165,9 @@ def _title(run: _Run) -> str:
     lines = [
         f"{c.tag} {c.name}",
         f"{c.from_device.name} → {c.to_device.name}",
-        f"{size_text(c)}, {protection_text(c)}",
+        f"{size_text(c)}, {c.protection.words}",
     ]
+    lines += [f"{who}: {text}" for who, text in c.colour_texts()]
     if run.sizing.error:
         lines.append(f"Not sized: {run.sizing.error}")
     for f in run.sizing.findings:
@@ -198,20 +207,28 @@ def _box(box: _Box, link: Link | None) -> str:
     d = box.device
     # Sources have a double outline, distribution square corners, loads round ends.
     shape = {"x": box.x, "y": box.y, "width": box.w, "height": BOX_H}
-    out = _el("rect", {**shape, "rx": (2, 0, 14)[box.tier], "fill": PAPER, "stroke": INK})
-    if box.tier == 0:
+    rx = {OUTSIDE: 2, SOURCES: 2}.get(box.tier, 0 if box.tier == DISTRIBUTION else 14)
+    dash = "6 3" if box.tier == OUTSIDE else None
+    out = _el("rect", {**shape, "rx": rx, "fill": PAPER, "stroke": INK, "stroke_dasharray": dash})
+    if box.tier <= SOURCES:
         inner = {"x": box.x + 4, "y": box.y + 4, "width": box.w - 8, "height": BOX_H - 8}
         out += _el("rect", {**inner, "fill": "none", "stroke": INK, "stroke_width": 1})
     names = _wrap(d.name, int((box.w - 14) / 7.6), 2)
     for i, line in enumerate(names):
         y = box.y + (20 if len(names) == 2 else 26) + i * 15
         out += _text(box.cx, y, line, size=13, font_weight="bold", text_anchor="middle")
-    kind = d.get_kind_display() + (" · source" if box.tier == 0 else "")
+    if box.tier == OUTSIDE:
+        kind = "External supply"  # a source by nature; its line crosses the boundary
+    else:
+        kind = d.get_kind_display() + (" · source" if box.tier == SOURCES else "")
     kind = _clip(kind, int((box.w - 12) / 6.2))
     out += _text(box.cx, box.y + BOX_H - 8, kind, size=11, fill=MUTED, text_anchor="middle")
     mark = _mark(box.findings, None)
     out += _marker(mark[0], box.x + box.w - 4, box.y + 4) if mark else ""
     tip = [d.name, d.get_kind_display()] + ([d.location] if d.location else [])
+    if box.tier == OUTSIDE:
+        volts = f"{d.supply_voltage.normalize():f} V, " if d.supply_voltage is not None else ""
+        tip.append(f"Off the vehicle: {volts}protected by {d.protection_display}")
     tip += [f"{'waived ' if f.waived else ''}{f.severity}: {f.message}" for f in box.findings]
     body = _el("title", {}, escape("\n".join(tip))) + _linked(d, out, link)
     return _el("g", {"class": "device", "data_device": d.name, "stroke_width": 1.5}, body)
@@ -256,12 +273,19 @@ def job_diagram_svg(
     tiers: dict[int, list[list[_Box]]] = defaultdict(list)
     for row in rows:
         tiers[row[0].tier].append(row)
+    inside: list[float] = []  # top and bottom of the tiers inside the vehicle
     for tier, tier_rows in sorted(tiers.items()):
         first = tier_rows[0]
         top = first[0].y - (BAND_H + 4 if any(box.tops for box in first) else 10)
-        band = {"x": MARGIN / 2, "y": top, "width": width - MARGIN, "rx": 6, "fill": TIER_FILL}
-        out += _el("rect", {**band, "height": tier_rows[-1][0].bottom + 10 - top})
+        bottom = tier_rows[-1][0].bottom + 10
+        fill = PAPER if tier == OUTSIDE else TIER_FILL
+        band = {"x": MARGIN / 2, "y": top, "width": width - MARGIN, "rx": 6, "fill": fill}
+        out += _el("rect", {**band, "height": bottom - top})
         out += _text(MARGIN, top + 22, TIER_NAMES[tier], size=13, font_weight="bold", fill=MUTED)
+        if tier != OUTSIDE:
+            inside += [top, bottom]
+    if OUTSIDE in tiers and inside:
+        out += _boundary(min(inside) - 6, max(inside) + 6, width)
     lines = labels = ""
     for run in runs:
         attrs = {"class": "circuit", "data_tag": run.circuit.tag}
@@ -275,6 +299,19 @@ def job_diagram_svg(
     # With links inside, a group (an image would hide them from assistive technology).
     role = "group" if link else "img"
     return _svg(out + lines + boxes + labels + legend, width, height, summary, role)
+
+
+def _boundary(top: float, bottom: float, width: float) -> str:
+    """The vehicle's boundary: a dashed outline round the tiers inside it, named at its top
+    right, so an external supply above it reads as outside the vehicle."""
+    frame = {"x": MARGIN / 4, "y": top, "width": width - MARGIN / 2, "height": bottom - top}
+    out = _el("rect", {**frame, "rx": 10, "fill": "none", "stroke": INK, "stroke_width": 1.5,
+                       "stroke_dasharray": "9 5", "class": "vehicle-boundary"})  # fmt: skip
+    label = "Vehicle boundary"
+    x = width - MARGIN - len(label) * 7.2
+    ground = {"x": x - 10, "y": top - 9, "width": len(label) * 7.2 + 16, "height": 16}
+    out += _el("rect", {**ground, "fill": PAPER})
+    return out + _text(x, top + 4, label, font_weight="bold", fill=MUTED)
 
 
 def _svg(body: str, width: float, height: float, label: str, role: str = "img") -> str:

@@ -15,7 +15,10 @@ DISTRIBUTION_KINDS = {
     *(K.BUSBAR, K.PROTECTION, K.DC_PANEL, K.AC_PANEL),
     *(K.INVERTER_CHARGER, K.CHARGE_CONTROLLER, K.DC_DC_CHARGER),
 }
-TIER_NAMES = ("Sources", "Distribution", "Loads")
+# Tier 0 holds external supplies (a pedestal, a generator, a building socket): they sit
+# off the vehicle, drawn above and outside its boundary.
+TIER_NAMES = ("Outside the vehicle", "Sources", "Distribution", "Loads")
+OUTSIDE, SOURCES, DISTRIBUTION, LOADS = range(4)
 _KIND_RANK = {kind: i for i, kind in enumerate(K.values)}
 
 # Geometry, in SVG user units (px at 100 %).
@@ -36,9 +39,11 @@ LEGEND_W = 600
 
 
 def tier_of(device: Device) -> int:
+    if device.is_external:
+        return OUTSIDE
     if device.is_source or device.kind in SOURCE_KINDS:
-        return 0
-    return 1 if device.kind in DISTRIBUTION_KINDS else 2
+        return SOURCES
+    return DISTRIBUTION if device.kind in DISTRIBUTION_KINDS else LOADS
 
 
 @dataclass(eq=False)
@@ -87,14 +92,14 @@ class _Run:
 def _order_tiers(boxes: list[_Box], neighbours: dict[_Box, list[_Box]]) -> list[list[_Box]]:
     """Each tier left to right in an order that keeps lines short: by kind and name first,
     then a few passes sorting each tier by the mean position of each device's neighbours."""
-    tiers: list[list[_Box]] = [[], [], []]
+    tiers: list[list[_Box]] = [[] for _ in TIER_NAMES]
     for box in sorted(boxes, key=lambda b: (_KIND_RANK.get(b.device.kind, 99), b.device.name)):
         tiers[box.tier].append(box)
 
     def pos(box: _Box) -> float:
         return tiers[box.tier].index(box) / max(len(tiers[box.tier]) - 1, 1)
 
-    for t in (1, 2, 0, 1, 2):
+    for t in (DISTRIBUTION, LOADS, SOURCES, OUTSIDE, DISTRIBUTION, LOADS):
         now = {box: pos(box) for box in tiers[t]}
         near = {b: [now[n] if n.tier == t else pos(n) for n in neighbours[b]] for b in tiers[t]}
         tiers[t].sort(key=lambda b: (sum(near[b]) / len(near[b])) if near[b] else now[b])
@@ -102,14 +107,15 @@ def _order_tiers(boxes: list[_Box], neighbours: dict[_Box, list[_Box]]) -> list[
 
 
 def _wrap_rows(tiers: list[list[_Box]]) -> list[list[_Box]]:
-    """One row each for sources and distribution (wrapping the middle tier would send most
-    lines through it); loads wrap onto more rows once wider than the rest of the drawing."""
-    limit = max([MAX_ROW_W] + [sum(b.w + GAP for b in tier) - GAP for tier in tiers[:2]])
+    """One row each for external supplies, sources and distribution (wrapping the middle
+    tier would send most lines through it); loads wrap onto more rows once wider than the
+    rest of the drawing."""
+    limit = max([MAX_ROW_W] + [sum(b.w + GAP for b in tier) - GAP for tier in tiers[:LOADS]])
     rows: list[list[_Box]] = []
     for t, tier in enumerate(tiers):
         row: list[_Box] = []
         for box in tier:
-            if t == 2 and row and sum(b.w + GAP for b in row) + box.w > limit:
+            if t == LOADS and row and sum(b.w + GAP for b in row) + box.w > limit:
                 rows.append(row)
                 row = []
             row.append(box)

@@ -149,7 +149,8 @@ def circuit_input(circuit: Circuit) -> CircuitInput:
         parallel=int(circuit.parallel),
         critical=circuit.critical,
         continuous=circuit.continuous,
-        protection_a=float(circuit.protection_a) if circuit.protection_a is not None else None,
+        # The protection's one home: a protection device's rating, or the circuit's own.
+        protection_a=float(rating) if (rating := circuit.protection.rating_a) is not None else None,
         tinned=circuit.tinned,
         ac=circuit.is_ac,
     )

@@ -8,12 +8,14 @@ made on."""
 
 from __future__ import annotations
 
+from collections.abc import Iterable, Mapping
+
 from django.core.exceptions import NON_FIELD_ERRORS, PermissionDenied, ValidationError
 from django.db import IntegrityError, transaction
 from django.db.models import ProtectedError
 from django.utils import timezone
 
-from circuits.models import Circuit, Termination, TorqueDefault, Waiver
+from circuits.models import Circuit, Device, Terminal, Termination, TorqueDefault, Waiver
 from circuits.tags import tag_key
 from inspections.models import ThermalReading, TorqueRecord
 from inspections.services.status import job_is_locked, lock_message
@@ -190,13 +192,55 @@ def terminations_sync(*, circuit: Circuit) -> list[Termination]:
     return created
 
 
-def device_save(*, form, terminals):
-    """Save a bound, valid device form and its terminal formset together or not at all.
-    Refused while the job is locked, and when a terminal to be removed has conductor ends
-    with readings on it (they would lose the stud they were read on)."""
+def device_save(
+    *,
+    job,
+    device: Device | None = None,
+    fields: Mapping[str, object],
+    terminals: Iterable[Mapping[str, object]] = (),
+    remove_terminals: Iterable[int] = (),
+) -> Device:
+    """Create a device (`device` None) or update one, with its terminals, together or not
+    at all. `fields` are the device's model fields; each of `terminals` holds a
+    terminal's fields, with "id" for an existing terminal of this device (updated) or
+    without (added); `remove_terminals` are ids of this device's terminals to remove.
+
+    Refused while the job is locked, for a terminal id that is not this device's, and
+    when a terminal to be removed has conductor ends with readings on it (they would lose
+    the stud they were read on). Every record is validated (full_clean) before it is
+    written; a ValidationError saves nothing."""
     with transaction.atomic():
-        check_unlocked(form.instance.job_id)
-        removed = [f.instance for f in terminals.deleted_forms if f.instance.pk]
+        check_unlocked(job)
+        if device is None:
+            device = Device(job=job)
+        else:
+            device = Device.objects.select_for_update().get(pk=device.pk, job=job)
+        for name, value in fields.items():
+            setattr(device, name, value)
+        device.full_clean()
+        if device.pk and (not device.protects or device.protection_a is None):
+            protected = sorted(device.protected_circuits.values_list("tag", flat=True), key=tag_key)
+            if protected:
+                raise ValidationError(
+                    {
+                        "protection_a": f"{device.name} is the protection of circuit"
+                        f"{'s' if len(protected) > 1 else ''} {', '.join(protected)}; keep "
+                        "it a fuse or breaker holder with a rating, or give those circuits "
+                        "other protection first."
+                    }
+                )
+        own = {t.pk: t for t in device.terminals.all()} if device.pk else {}
+        removed_ids = set(remove_terminals)
+        strangers = sorted(
+            str(pk)
+            for pk in removed_ids | {row["id"] for row in terminals if row.get("id")}
+            if pk not in own
+        )
+        if strangers:
+            raise refusal(
+                f"Terminal ids {', '.join(strangers)} are not this device's; nothing was saved."
+            )
+        removed = [own[pk] for pk in removed_ids]
         if removed:
             landing = Termination.objects.filter(terminal__in=removed).select_related("terminal")
             read = _with_readings(landing)
@@ -207,9 +251,16 @@ def device_save(*, form, terminals):
                     f"{'have' if len(kept) > 1 else 'has'} conductor ends with torque or "
                     "temperature readings; keep it. Nothing was saved."
                 )
-        device = form.save()
-        terminals.instance = device
-        terminals.save()
+        device.save()
+        for terminal in removed:
+            terminal.delete()
+        for row in terminals:
+            values = {k: v for k, v in row.items() if k != "id"}
+            terminal = own[row["id"]] if row.get("id") else Terminal(device=device)
+            for name, value in values.items():
+                setattr(terminal, name, value)
+            terminal.full_clean()
+            terminal.save()
     return device
 
 
@@ -343,8 +394,6 @@ def circuit_delete(*, circuit: Circuit, user) -> int:
 
 def device_delete(*, device, user) -> None:
     """Delete a device and its terminals, refused while any circuit uses it."""
-    from circuits.models import Device
-
     if not user.has_perm("circuits.delete_device"):
         raise PermissionDenied("Removing a device is lead or office work; ask a lead.")
     with transaction.atomic():

@@ -21,7 +21,10 @@ The facts, chosen deliberately:
   mounting for slack; enclosure for the shared-panel colour rule; the vehicle's AC system
   and kind for the colour rules, its kind and salt water for construction; for the shore
   rule the input current setting of every inverter/charger of the job (the rule may find
-  the charger several devices away from the circuit, so every one counts).
+  the charger several devices away from the circuit, so every one counts), and for the
+  external-supply checks the supply's kind, breaker rating and voltage.
+* A circuit's protection is its one home's (Circuit.protection): with a protection
+  device, that device's type and rating are the circuit's protection facts.
 * The sizing engine's findings rest on the circuit alone.
 * A code not listed here (a rule added later) takes every device and vehicle fact:
   lapsing too often costs a lead a renewal; lapsing too rarely is the defect this guards.
@@ -52,7 +55,7 @@ from circuits.sizing import CODES as ENGINE_CODES
 from circuits.sizing import SizeNotationError, parse_size
 from shop.models import Vehicle
 
-FACTS_VERSION = 1
+FACTS_VERSION = 2  # 2: re-marking per conductor, protection device, external supplies
 NEW = "new"  # key of a circuit not saved yet
 
 # (field, words, kind): kind says how a value is made canonical and how it is shown.
@@ -73,15 +76,24 @@ CIRCUIT_FACTS: tuple[tuple[str, str, str], ...] = (
     ("insulation_c", "insulation rating", "celsius"),
     ("engine_space", "in an engine space", "bool"),
     ("bundled", "conductors bundled", "count"),
+    ("protection_device", "protection device", "device"),
     ("protection_type", "protection", "choice"),
     ("protection_a", "protection rating", "amps"),
     ("protection_distance_m", "protection distance", "metres"),
     ("colour_a", "colour of positive / line", "choice"),
+    ("marking_a_method", "re-marking of positive / line", "choice"),
+    ("marking_a_colour", "marking colour of positive / line", "choice"),
+    ("marking_a_ends", "ends marked of positive / line", "choice"),
     ("colour_b", "colour of negative / neutral", "choice"),
+    ("marking_b_method", "re-marking of negative / neutral", "choice"),
+    ("marking_b_colour", "marking colour of negative / neutral", "choice"),
+    ("marking_b_ends", "ends marked of negative / neutral", "choice"),
     ("colour_earth", "colour of earth", "choice"),
+    ("marking_earth_method", "re-marking of earth", "choice"),
+    ("marking_earth_colour", "marking colour of earth", "choice"),
+    ("marking_earth_ends", "ends marked of earth", "choice"),
     ("splice", "splice", "bool"),
     ("colour_after_splice", "colour after the splice", "choice"),
-    ("tape_remarked", "re-marked with tape", "bool"),
     ("service_loop_confirmed", "service loop confirmed", "bool"),
 )
 DEVICE_FACTS: dict[str, tuple[str, str]] = {
@@ -90,6 +102,8 @@ DEVICE_FACTS: dict[str, tuple[str, str]] = {
     "mounting": ("mounting", "choice"),
     "enclosure": ("enclosure", "text"),
     "input_current_a": ("AC input current setting", "amps"),
+    "protection_a": ("protection rating", "amps"),
+    "supply_voltage": ("supply voltage", "volts"),
 }
 VEHICLE_FACTS: dict[str, tuple[str, str]] = {
     "kind": ("kind", "choice"),
@@ -112,6 +126,7 @@ _CONSTRUCTION = Needs(vehicle=("kind", "near_salt_water"))
 _PROTECTION = Needs(end_devices=("kind", "is_source"))
 _SLACK = Needs(end_devices=("mounting",))
 _SHORE = Needs(chargers=True)
+_SUPPLY = Needs(end_devices=("kind", "protection_a"), chargers=True)
 RULE_NEEDS: dict[str, Needs] = {
     "BOTTLENECK_INTERCONNECT": Needs(end_devices=("kind",)),
     "BOTTLENECK_PATH": Needs(end_devices=("kind",)),
@@ -132,12 +147,17 @@ RULE_NEEDS: dict[str, Needs] = {
     "COLOUR_EARTH_ON_LIVE": _COLOUR,
     "COLOUR_SPLICE_CHANGE": _COLOUR,
     "COLOUR_TAPE_REMARKED": _COLOUR,
+    "COLOUR_REMARKED": _COLOUR,
+    "COLOUR_BARE_LIVE": _COLOUR,
     "COLOUR_AC_SYSTEM_UNKNOWN": _COLOUR,
     "COLOUR_BLACK_DC_AND_AC": Needs(end_devices=("enclosure",)),
     "SLACK_SERVICE_LOOP": _SLACK,
     "SLACK_BODY_CHASSIS": _SLACK,
     "SHORE_BELOW_INPUT_SETTING": _SHORE,
     "SHORE_INPUT_SETTING_UNKNOWN": _SHORE,
+    "SHORE_CORD_BELOW_SUPPLY": _SUPPLY,
+    "SHORE_INPUT_ABOVE_SUPPLY": _SUPPLY,
+    "SHORE_SUPPLY_VOLTAGE": Needs(end_devices=("kind", "supply_voltage"), vehicle=("ac_system",)),
     "SIZE_NOTATION_MISMATCH": Needs(),
 }
 _EVERYTHING = Needs(end_devices=tuple(DEVICE_FACTS), vehicle=tuple(VEHICLE_FACTS), chargers=True)
@@ -201,6 +221,11 @@ def _circuit_facts(circuit: Circuit) -> dict:
     for name, _words, kind in CIRCUIT_FACTS:
         attr = f"{name}_id" if kind == "device" else name
         out[name] = _canonical(kind, getattr(circuit, attr, None))
+    # The protection as its one home gives it: a protection device's own type and rating,
+    # so a changed fuse in the holder changes the circuit's facts too.
+    protection = circuit.protection
+    out["protection_type"] = _canonical("choice", protection.kind)
+    out["protection_a"] = _canonical("amps", protection.rating_a)
     return out
 
 

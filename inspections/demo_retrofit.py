@@ -8,8 +8,8 @@ so it is idempotent in the same way."""
 
 from __future__ import annotations
 
-from circuits.demo.loading import _circuit, _devices
-from circuits.demo.tables import System, circuit_spec, read_table
+from circuits.demo.loading import system_load
+from circuits.demo.tables import System
 
 # Terminal torques are the (invented) device manuals' values in N·m; the busbar's 5/16 in
 # studs take the shop default for crimped lugs (circuits.demo.tables.TORQUE_DEFAULTS).
@@ -33,8 +33,4 @@ S-04 | Second controller to DC busbar | charging | Second charge controller > DC
 
 def retrofit_system_load(job) -> None:
     """Give the retrofit job its devices and circuits (those missing)."""
-    devices = _devices(job, RETROFIT)
-    tags = set(job.circuits.values_list("tag", flat=True))
-    for spec in read_table(RETROFIT.circuits, circuit_spec):
-        if spec.tag not in tags:
-            _circuit(job, RETROFIT, spec, devices)
+    system_load(job, RETROFIT)

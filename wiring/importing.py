@@ -9,7 +9,9 @@ owner by name and e-mail, else created), a new job for it, and its devices, term
 circuits and terminations through the circuits services (devices through their form and
 device_save, circuits through circuits_from_csv, terminations' specs through
 termination_update). Nothing of the record's evidence (readings, sign-offs) is copied:
-those describe work done then, and the new job's work is new.
+those describe work done then, and the new job's work is new; with `return_visit` the
+record's final torque readings are kept as the last readings (not as evidence of the new
+job) to be shown beside each end and compared with the re-check's.
 
 Every refusal is a RecordImportError with one plain line saying why; nothing is saved.
 """
@@ -24,10 +26,11 @@ from django.core.exceptions import ValidationError
 from django.db import transaction
 
 from circuits.csv_io import circuits_from_csv
-from circuits.forms import DeviceForm, TerminalFormSet
+from circuits.forms import DeviceForm, TerminalFormSet, device_save_values
 from circuits.models import Termination
 from circuits.services import device_save, termination_update
-from shop.models import Owner, Vehicle
+from inspections.services.return_visit import prior_record_import
+from shop.models import Job, Owner, Vehicle
 from shop.services import job_create
 from wiring.render.data import SCHEMA, SCHEMA_VERSION
 
@@ -84,10 +87,32 @@ def read_record(data: bytes) -> tuple[dict, str]:
     try:
         record = json.loads(files["record.json"][0].decode("utf-8"))
         schedule = files["schedule.csv"][0].decode("utf-8")
-    except (UnicodeDecodeError, json.JSONDecodeError, IndexError) as exc:
+    except (UnicodeDecodeError, json.JSONDecodeError, IndexError, RecursionError) as exc:
         raise RecordImportError(f"The embedded record is not readable: {_one_line(exc)}") from exc
+    if "\x00" in schedule or _holds_nul(record):
+        # PostgreSQL refuses NUL in text; a record of ours never holds one.
+        raise RecordImportError(
+            "The embedded record holds a NUL character, which cannot be stored."
+        )
     check_record(record)
     return record, schedule
+
+
+def _holds_nul(value: object) -> bool:
+    """Whether any string in the decoded JSON holds a NUL (walked without recursion, as
+    the JSON may be nested as deep as the decoder allows)."""
+    stack = [value]
+    while stack:
+        item = stack.pop()
+        if isinstance(item, str):
+            if "\x00" in item:
+                return True
+        elif isinstance(item, dict):
+            stack.extend(item.keys())
+            stack.extend(item.values())
+        elif isinstance(item, list):
+            stack.extend(item)
+    return False
 
 
 def check_record(record: object) -> None:
@@ -156,6 +181,9 @@ def _device(job, given: dict) -> None:
         "enclosure": given.get("enclosure") or "",
         "location": given.get("location") or "",
         "input_current_a": given.get("input_current_a") or "",
+        "protection_type": given.get("protection_type") or "",
+        "protection_a": given.get("protection_a") or "",
+        "supply_voltage": given.get("supply_voltage") or "",
         "notes": given.get("notes") or "",
         "terminals-TOTAL_FORMS": str(len(terminals)),
         "terminals-INITIAL_FORMS": "0",
@@ -171,7 +199,7 @@ def _device(job, given: dict) -> None:
         errors = [f"{k}: {' '.join(v)}" for k, v in form.errors.items()]
         errors += [f"terminal {k}: {' '.join(v)}" for e in formset.errors for k, v in e.items()]
         raise RecordImportError(f"Device {given.get('name')!r}: {'; '.join(errors)}")
-    device_save(form=form, terminals=formset)
+    device_save(**device_save_values(form, formset))
 
 
 def _terminations(job, given: list) -> None:
@@ -198,15 +226,23 @@ def _terminations(job, given: list) -> None:
         termination_update(termination=termination)
 
 
-def import_record(record: dict, schedule: str) -> object:
-    """Create a new job from a checked record and its schedule CSV; returns the job."""
+def import_record(record: dict, schedule: str, *, return_visit: bool = False) -> object:
+    """Create a new job from a checked record and its schedule CSV; returns the job.
+
+    With `return_visit` the job is a return visit (its re-check open first) and the
+    record's final torque readings are kept beside each end (PriorRecord/PriorReading,
+    inspections.services.return_visit.prior_record_import), as for a return visit
+    booked from this shop's own approved job; `follows` stays empty."""
     source = record["job"]
+    kind = Job.Kind.RETURN_VISIT if return_visit else Job.Kind.BUILD
+    what = "Return visit" if return_visit else "Rework"
     try:
         with transaction.atomic():
             vehicle = _owner_vehicle(record)
             job = job_create(
                 vehicle=vehicle,
-                title=_one_line(f"Rework: {source.get('title') or 'imported system'}")[:160],
+                kind=kind,
+                title=_one_line(f"{what}: {source.get('title') or 'imported system'}")[:160],
                 description=(
                     f"Imported from wiring record of job {source.get('number', '?')}"
                     f" ({record.get('shop', {}).get('name', 'another shop')})."
@@ -218,14 +254,21 @@ def import_record(record: dict, schedule: str) -> object:
             if not result.ok:
                 raise RecordImportError(f"Circuit schedule: {result.errors[0]}")
             _terminations(job, record["terminations"])
+            if return_visit:
+                prior_record_import(job=job, record=record)
     except ValidationError as exc:
         raise RecordImportError(_one_line(_validation_text(exc))) from exc
     return job
 
 
-def import_record_file(data: bytes):
+def import_record_file(data: bytes, *, return_visit: bool = False):
     """read_record then import_record: the new job, or RecordImportError."""
     if len(data) > MAX_PDF_BYTES:
         raise RecordImportError("This file is too large to be a wiring record.")
     record, schedule = read_record(data)
-    return import_record(record, schedule)
+    try:
+        return import_record(record, schedule, return_visit=return_visit)
+    except (TypeError, AttributeError, KeyError, ValueError, ArithmeticError) as exc:
+        # A value of the wrong JSON type deep inside (a number for a list, a list for a
+        # name) fails where it is used; the record, not the app, is what is wrong.
+        raise RecordImportError(f"The embedded record is malformed: {_one_line(exc)}") from exc

@@ -6,10 +6,17 @@ realistic problems planted for the rules to find:
   van        a 2 AWG positive battery interconnect beside a 4/0 main feed (bottleneck);
              a 16 AWG cord from the shore inlet to a 30 A inverter/charger input; black
              used for DC negatives and the AC line in one cabinet; a solar string whose
-             breaker sits at the controller (protection distance, waived by the lead)
+             breaker sits at the controller (protection distance, waived by the lead).
+             Also shown: the main fuse holder as the protection of the runs either side
+             of it (rating read from the holder), a campground pedestal (an external
+             supply off the vehicle, 30 A breaker, 120 V) with its shore cord protected
+             at the pedestal, and a bare braided bonding strap
   truck      the alternator-to-charger run from the engine to the chassis without a
              confirmed service loop
-  motorhome  a kitchen-socket run spliced onto a black offcut (colour change at a splice)
+  motorhome  a kitchen-socket run spliced onto a black offcut (colour change at a splice);
+             a 2/0 interconnect whose positive is black welding cable re-marked red with
+             heat-shrink at both ends (a note: re-marking at the ends is accepted for
+             4 AWG and larger)
   boat       a bare "4" written where the 4/0 main feed was meant; one untinned run
 
 The systems are written as small tables, one device or circuit a line (tables.py: see
@@ -24,7 +31,7 @@ circuits by job + tag (terminations come with their circuit), torque defaults by
 from __future__ import annotations
 
 from .boat import BOAT
-from .loading import SYSTEMS, load, torque_defaults_load
+from .loading import SYSTEMS, load, system_load, torque_defaults_load
 from .motorhome import MOTORHOME
 from .tables import TORQUE_DEFAULTS, System
 from .truck import TRUCK
@@ -39,5 +46,6 @@ __all__ = [
     "VAN",
     "System",
     "load",
+    "system_load",
     "torque_defaults_load",
 ]

@@ -44,6 +44,9 @@ def _devices(job, system: System) -> dict[str, Device]:
                 enclosure=spec.enclosure,
                 location=spec.location,
                 input_current_a=spec.input_a,
+                protection_type=spec.protection[0] if spec.protection else "",
+                protection_a=spec.protection[1] if spec.protection else None,
+                supply_voltage=spec.supply_v,
             )
             device.full_clean()
             device.save()
@@ -67,14 +70,28 @@ _CONDUCTORS = {"pair", "pos", "neg", "ac", "earth"}
 _CONSTRUCTIONS = {"cord", "solid", "standard"}
 
 
-def _colours(system: System, conductors: str) -> tuple[str, str, str]:
+def _colours(system: System, spec: CircuitSpec, conductors: str) -> dict[str, str]:
+    """The insulation colours (the system's, or the spec's own) and any re-marking."""
     if conductors == "earth":
-        return ("", "", system.ac[2])
-    if conductors == "ac":
-        return system.ac
-    positive = system.dc[0] if conductors in ("pair", "pos") else ""
-    negative = system.dc[1] if conductors in ("pair", "neg") else ""
-    return (positive, negative, "")
+        colours = ("", "", system.ac[2])
+    elif conductors == "ac":
+        colours = system.ac
+    else:
+        positive = system.dc[0] if conductors in ("pair", "pos") else ""
+        negative = system.dc[1] if conductors in ("pair", "neg") else ""
+        colours = (positive, negative, "")
+    out = {}
+    for role, colour in zip(("a", "b", "earth"), colours, strict=True):
+        field = "colour_earth" if role == "earth" else f"colour_{role}"
+        out[field] = spec.options.get(f"colour.{role}", colour)
+        if f"mark.{role}" in spec.options:
+            method, mark_colour, ends = spec.options[f"mark.{role}"].split(":")
+            out |= {
+                f"marking_{role}_method": method,
+                f"marking_{role}_colour": mark_colour,
+                f"marking_{role}_ends": ends,
+            }
+    return out
 
 
 def _terminal(device: Device, name: str | None) -> Terminal | None:
@@ -107,7 +124,6 @@ def _circuit(job, system: System, spec: CircuitSpec, devices: dict[str, Device])
     o, flags = spec.options, spec.flags
     ac = spec.role in (Circuit.Role.SHORE_SUPPLY, Circuit.Role.AC_BRANCH)
     conductors = next(iter(flags & _CONDUCTORS), "ac" if ac else "pair")
-    colour_a, colour_b, colour_earth = _colours(system, conductors)
     volts = (
         Decimal(o["V"]) if "V" in o else Decimal(system.ac_volts if ac else job.vehicle.dc_voltage)
     )
@@ -136,11 +152,10 @@ def _circuit(job, system: System, spec: CircuitSpec, devices: dict[str, Device])
         construction=next(iter(flags & _CONSTRUCTIONS), "fine"),
         tinned="untinned" not in flags,
         engine_space="engine" in flags,
-        colour_a=colour_a,
-        colour_b=colour_b,
-        colour_earth=colour_earth,
+        **_colours(system, spec, conductors),
         splice="splice" in o,
         colour_after_splice=o.get("splice", ""),
+        protection_device=devices[o["prot"]] if "prot" in o else None,
         protection_type=kind,
         protection_a=Decimal(o[kind]) if kind != "none" else None,
         protection_distance_m=float(o["at"]) if "at" in o else None,
@@ -170,6 +185,16 @@ def _waivers(job, system: System, lead) -> None:
             continue  # the finding is no longer raised (the system was edited): nothing to waive
 
 
+def system_load(job, system: System) -> None:
+    """Give a job a demo system's devices and the circuits it lacks (devices by name,
+    circuits by tag: what is there is left as it is)."""
+    devices = _devices(job, system)
+    tags = set(job.circuits.values_list("tag", flat=True))
+    for spec in read_table(system.circuits, circuit_spec):
+        if spec.tag not in tags:
+            _circuit(job, system, spec, devices)
+
+
 def load(*, lead) -> None:
     """Load the demo systems into the demo jobs that exist. Call inside a transaction."""
     from shop.models import Job
@@ -183,9 +208,5 @@ def load(*, lead) -> None:
         )
         if job is None:
             continue
-        devices = _devices(job, system)
-        tags = set(job.circuits.values_list("tag", flat=True))
-        for spec in read_table(system.circuits, circuit_spec):
-            if spec.tag not in tags:
-                _circuit(job, system, spec, devices)
+        system_load(job, system)
         _waivers(job, system, lead)

@@ -26,7 +26,7 @@ Water heater | load | body | | | Garage |
 Bedroom sockets | load | body | | | Rear bedroom |
 """,  # noqa: E501
     circuits="""
-C-01 | Battery interconnect | interconnect | House battery 1 > House battery 2 | 2/0 AWG | 60 | 0.5 m |
+C-01 | Battery interconnect | interconnect | House battery 1 > House battery 2 | 2/0 AWG | 60 | 0.5 m | colour.a=black; mark.a=heat_shrink:red:both; note=Positive cut from black welding cable, sleeved red at both lugs.
 C-02 | Battery 2 to main busbar | main_feed | House battery 2 > Main busbar | 2/0 AWG | 120 | 1.5 m | fuse=200; at=0.1
 C-03 | Inverter/charger DC feed | dc_branch | Main busbar > Inverter/charger | 1/0 AWG | 115 | 1.0 m | fuse=150
 P-01 | Shore inlet to inverter/charger | shore | Shore inlet > Inverter/charger | 12 AWG | 16 | 4.0 m | breaker=20; at=0.5; ac_in

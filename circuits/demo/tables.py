@@ -44,6 +44,8 @@ class DeviceSpec:
     enclosure: str
     location: str
     terminals: list[tuple[str, str, str, Decimal | None]]
+    protection: tuple[str, Decimal] | None = None  # ("fuse" or "breaker", rating A)
+    supply_v: Decimal | None = None  # an external supply's voltage
 
 
 @dataclass
@@ -78,14 +80,20 @@ def terminal_list(text: str) -> list[tuple[str, str, str, Decimal | None]]:
 
 
 def device_spec(line: str) -> DeviceSpec:
-    """name | kind | mounting | flags (source, input=30) | enclosure | location | terminals"""
+    """name | kind | mounting | flags | enclosure | location | terminals
+
+    Flags: source; input=A (an inverter/charger's input current setting); fuse=A or
+    breaker=A (what a fuse or breaker holder holds, or an external supply's breaker);
+    V=volts (an external supply's voltage)."""
     name, kind, mounting, flags, enclosure, location, terminals = (
         p.strip() for p in line.split("|")
     )
     words = dict(w.split("=") if "=" in w else (w, "") for w in flags.split())
     input_a = Decimal(words["input"]) if "input" in words else None
+    protection = next(((k, Decimal(words[k])) for k in ("fuse", "breaker") if k in words), None)
+    supply_v = Decimal(words["V"]) if "V" in words else None
     return DeviceSpec(name, kind, mounting, "source" in words, input_a, enclosure, location,
-                      terminal_list(terminals))  # fmt: skip
+                      terminal_list(terminals), protection, supply_v)  # fmt: skip
 
 
 def circuit_spec(line: str) -> CircuitSpec:
@@ -94,10 +102,13 @@ def circuit_spec(line: str) -> CircuitSpec:
     Options, separated by ';': conductors (pair, pos, neg, ac, earth); x=2 (in parallel);
     cord, solid, standard (construction); untinned; engine (engine space); continuous;
     critical; loop (service loop confirmed); fuse=A or breaker=A; at=m (protection
-    distance from the source); V=volts; from=/to= terminal names; from.neg=/to.neutral=…
-    for a polarity's terminal where the device has several; ac_in / ac_out (the
-    inverter/charger's AC in or AC out terminals); splice=colour beyond a splice;
-    note=text (last).
+    distance from the source); prot=device (the protection device at one end whose fuse
+    or breaker protects the run, instead of fuse=/breaker=); V=volts; from=/to= terminal
+    names; from.neg=/to.neutral=… for a polarity's terminal where the device has several;
+    ac_in / ac_out (the inverter/charger's AC in or AC out terminals); splice=colour
+    beyond a splice; colour.a=/colour.b=/colour.earth= an insulation colour other than the
+    system's (e.g. colour.earth=bare); mark.a=method:colour:ends (a re-marking, e.g.
+    mark.a=heat_shrink:red:both); note=text (last).
     """
     tag, name, role, ends, size, amps, length, options = (p.strip() for p in line.split("|"))
     frm, to = (p.strip() for p in ends.split(">"))

@@ -13,12 +13,13 @@ the other battery delivers the whole load through the interconnect. So:
   shares the current unevenly and runs hot first.
 * BOTTLENECK_PATH (blocking): a path conductor whose ampacity is below the largest rating
   it feeds. That rating is the largest of: the protection of the other path circuits (the
-  main fuse recorded on the main feed), and the protection (else the design current) of
-  each circuit leaving the device where the path ends (the fuse holder's outgoing feed, or
-  the busbar's largest branch). With none of those known, the largest main-feed design
-  current is used. A path circuit that carries its own protection is not held to the
-  others' ratings: the sizing engine checks it against its own fuse
-  (PROTECTION_ABOVE_AMPACITY), and its fuse is a rating the rest of the path must carry.
+  main fuse recorded on the main feed, or read from the fuse holder it ends at: every
+  rating comes from the circuit's one home, Circuit.protection), and the protection (else
+  the design current) of each circuit leaving the device where the path ends (the fuse
+  holder's outgoing feed, or the busbar's largest branch). With none of those known, the
+  largest main-feed design current is used. A path circuit that carries its own
+  protection is not held to the others' ratings: the sizing engine checks it against its
+  own fuse (PROTECTION_ABOVE_AMPACITY), and its fuse is a rating the rest of the path must carry.
   The walk goes on past such a circuit, because an unfused main feed beyond it is
   protected only by that fuse.
 
@@ -58,9 +59,13 @@ def _ratings(bank: Bank, circuits: list[Circuit]) -> list[tuple[float, str, str]
     """(amps, tag of the circuit it comes from, words) for what the path feeds."""
     ratings: list[tuple[float, str, str]] = []
     for c in bank.path:
-        if c.protection_a is not None:
+        if c.protection_rating_a is not None:
             ratings.append(
-                (float(c.protection_a), c.tag, f"the {amps(c.protection_a)} protection on {c.tag}")
+                (
+                    float(c.protection_rating_a),
+                    c.tag,
+                    f"the {amps(c.protection_rating_a)} protection on {c.tag}",
+                )
             )
     end_keys = {device_key(d) for d in bank.ends}
     for c in circuits:
@@ -71,11 +76,10 @@ def _ratings(bank: Bank, circuits: list[Circuit]) -> list[tuple[float, str, str]
         ):
             continue
         if device_key(c.from_device) in end_keys:
-            if c.protection_a is not None:
-                words = (
-                    f"the {amps(c.protection_a)} protection of {c.tag}, fed from {c.from_device}"
-                )
-                ratings.append((float(c.protection_a), c.tag, words))
+            if c.protection_rating_a is not None:
+                rating = amps(c.protection_rating_a)
+                words = f"the {rating} protection of {c.tag}, fed from {c.from_device}"
+                ratings.append((float(c.protection_rating_a), c.tag, words))
             else:
                 words = f"the {amps(c.design_current_a)} design current of {c.tag}"
                 ratings.append((float(c.design_current_a), c.tag, words))
@@ -102,7 +106,7 @@ def _bank_findings(
             continue  # no readable size: the sizing engine says so on the circuit
         others = [r for r in ratings if r[1] != c.tag]
         need = max(others, default=None)
-        own_protection = c.protection_type != Circuit.ProtectionType.NONE
+        own_protection = c.protection.fitted
         short = need is not None and own + EPS < need[0] and not own_protection
         if (
             c.role == Circuit.Role.BATTERY_INTERCONNECT

@@ -1,48 +1,78 @@
-"""Colours: insulation colours people will trust later, when tracing a fault.
+"""Colours: what a person opening a panel sees, so it can be trusted later when tracing
+a fault.
 
-Colour fields: colour_a is the DC positive or AC line, colour_b the DC negative or AC
-neutral, colour_earth the earth (for an earth-only circuit colour_a is read when
-colour_earth is blank). A blank colour is not checked.
+Each conductor role (positive / line, negative / neutral, earth: circuits.models.marking)
+has an insulation colour and may be re-marked at one or both ends (tape, heat-shrink,
+printed band). The colour judged is the one seen at each end: the marking's where the
+conductor is marked at that end, else the insulation. When both ends look alike the
+conductor is judged once; otherwise each end is judged and named ("the DC positive at the
+to end is black"). For an earth-only circuit entered with its one colour in the first
+field (older records), that colour is the earth's. A blank colour is not checked.
 
 DC (ABYC E-11 Table XIV):
 * COLOUR_DC_POSITIVE (warning): DC positive not red.
 * COLOUR_DC_NEGATIVE (warning): DC negative not yellow or black.
-* COLOUR_BONDING (warning): DC bonding/earth conductor not green or green-yellow.
+* COLOUR_BONDING (warning): DC bonding/earth conductor not green, green-yellow or bare.
 
 AC, against the vehicle's AC system:
 * 120 V 60 Hz: line black or brown (ABYC E-11; NEC by custom, from memory); neutral white
-  or grey (NEC 200.6, from memory), and light blue in a boat (ABYC E-11); earth green or
-  green-yellow (NEC 250.119, from memory; ABYC E-11).
+  or grey (NEC 200.6, from memory), and light blue in a boat (ABYC E-11); earth green,
+  green-yellow (NEC 250.119, from memory; ABYC E-11) or bare (NEC 250.119, from memory).
 * 230 V 50 Hz (IEC 60445:2010 §6.3): line brown (black and grey are the other line
-  colours); neutral blue; earth green-and-yellow only.
+  colours); neutral blue; earth green-and-yellow (or bare, as a bare earth is never taken
+  for a live conductor).
 * No AC system recorded but an AC circuit exists: the colours of either system are
   accepted, and COLOUR_AC_SYSTEM_UNKNOWN (note) asks for the vehicle's AC system.
 * COLOUR_AC_LINE, COLOUR_AC_NEUTRAL (warning).
-* COLOUR_AC_EARTH (blocking): an AC earth in any colour other than green or green-yellow.
-  Decided blocking because earth confusion is the dangerous one: an earth in a line colour
-  invites a line connection to it, putting every bonded metal part at line voltage.
-  COLOUR_AC_EARTH_GREEN (warning): plain green earth in a 230 V system, where IEC 60445
-  asks for green-and-yellow.
+* COLOUR_AC_EARTH (blocking): an AC earth seen in any colour other than green,
+  green-yellow or bare. Decided blocking because earth confusion is the dangerous one: an
+  earth in a line colour invites a line connection to it, putting every bonded metal part
+  at line voltage. COLOUR_AC_EARTH_GREEN (warning): plain green earth in a 230 V system,
+  where IEC 60445 asks for green-and-yellow.
 * COLOUR_EARTH_ON_LIVE (blocking): a current-carrying conductor (DC positive or negative,
-  AC line or neutral) in green or green-yellow, the colours everyone takes for earth.
+  AC line or neutral) seen in green or green-yellow, the colours everyone takes for earth.
+
+Bare:
+* Bare is a colour choice for earth and bonding conductors (a bare earth in building
+  cable, a braided bonding strap): accepted as above.
+* COLOUR_BARE_LIVE (blocking): a current-carrying conductor recorded bare. An uninsulated
+  conductor carrying current is a shock and short-circuit hazard whatever marks its ends
+  (every standard above requires insulated current-carrying conductors; common practice).
+
+Re-marking (one finding per circuit and code, naming each re-marked conductor):
+* COLOUR_TAPE_REMARKED (tape) and COLOUR_REMARKED (heat-shrink sleeve or printed band).
+  NEC 200.6(B) lets a grounded conductor (neutral; a DC negative bonded to the chassis is
+  the grounded conductor of a vehicle's DC system) of 4 AWG or larger be re-identified by
+  a marking at each termination, and NEC 250.119(A) the same for an equipment earthing
+  conductor of 4 AWG or larger (from memory: not in the project's standards reference).
+  Large cable sold in one colour (welding cable) is commonly re-marked at both ends for
+  the positive too (common practice). So:
+  - note: 4 AWG (21 mm²) or larger, marked at both ends. The standard permits it (the
+    text says which rule, or that it is common practice for a positive/line), so it
+    needs no waiver, and the record still says the conductor is re-marked;
+  - warning: smaller than 4 AWG (the rule does not reach it: use a conductor in its own
+    colour), or marked at one end only (the other end shows the insulation colour). A
+    departure a lead should accept in writing, not a hazard in itself;
+  - blocking comes from the colour rules above, which judge what each end shows (a live
+    conductor marked green at an end, an earth marked black).
+  Tape adds that tape fades and slips off (common practice).
 
 Across the system:
 * COLOUR_BLACK_DC_AND_AC (warning): in one panel (devices sharing an enclosure, or one
-  device) black is both a DC negative and an AC line; remedy: run the DC negatives in
-  yellow (ABYC E-11 lists yellow for DC negative, preferred where AC is present).
-  Subject: the enclosure (or device) name.
+  device) black is seen both on a DC negative and on an AC line at their ends there;
+  remedy: run the DC negatives in yellow (ABYC E-11 lists yellow for DC negative,
+  preferred where AC is present). Subject: the enclosure (or device) name.
 * COLOUR_SPLICE_CHANGE (warning): a splice where the colour beyond it differs.
-* COLOUR_TAPE_REMARKED (warning): a conductor re-marked with tape; tape fades and slips.
-  (NEC 200.6(B) and 250.119(A) allow tape on conductors of 4 AWG and larger, from memory;
-  the warning stands so the record says so.)
 """
 
 from __future__ import annotations
 
 from circuits.findings import SYSTEM_SUBJECT, SystemFinding
-from circuits.models import Circuit, Colour
+from circuits.models import Circuit, Colour, MarkingEnds, MarkingMethod, colour_name
+from circuits.models.marking import colour_text, insulation_of, seen_colour
+from circuits.sizing import SEVERITY_ORDER
 
-from .common import BLOCKING, NOTE, WARNING, describe, device_key, finding
+from .common import BLOCKING, NOTE, WARNING, describe, device_key, finding, installed_size
 
 SOURCE_DC = "ABYC E-11 Table XIV, DC conductor colours"
 SOURCE_AC = {
@@ -51,13 +81,21 @@ SOURCE_AC = {
     "none": "ABYC E-11 AC conductor colours; IEC 60445:2010 §6.3",
 }
 SOURCE_PANEL = "ABYC E-11 Table XIV (yellow DC negative where AC is present); common practice"
-SOURCE_MARKING = "common practice: one colour end to end; NEC 200.6(B), 250.119(A) (from memory)"
+SOURCE_SPLICE = "common practice: one colour end to end"
+SOURCE_MARKING = (
+    "NEC 2023 200.6(B), 250.119(A): re-identifying 4 AWG and larger at each end (from "
+    "memory); common practice: one colour end to end"
+)
+SOURCE_BARE = "common practice: current-carrying conductors are insulated; ABYC E-11 (from memory)"
 
-RED, BLACK, YELLOW = Colour.RED, Colour.BLACK, Colour.YELLOW
+RED, BLACK, YELLOW, BARE = Colour.RED, Colour.BLACK, Colour.YELLOW, Colour.BARE
 # Accepted colours, preferred first (the order messages name them in).
 EARTH_COLOURS = (Colour.GREEN_YELLOW, Colour.GREEN)
+EARTH_OR_BARE = (*EARTH_COLOURS, BARE)
 DC_POSITIVE = (RED,)
 DC_NEGATIVE = (YELLOW, BLACK)
+# 4 AWG is 21.15 mm² (ASTM B258; standards reference §1); 25 mm² and up count as large.
+LARGE_MM2 = 21.1
 
 _LINE = {"120_60": (BLACK, Colour.BROWN), "230_50": (Colour.BROWN, BLACK, Colour.GREY)}
 _NEUTRAL = {"120_60": (Colour.WHITE, Colour.GREY), "230_50": (Colour.BLUE,)}
@@ -72,132 +110,208 @@ def ac_colours(ac_system: str, *, boat: bool) -> tuple[tuple[str, ...], ...]:
         line, neutral = _LINE[ac_system], _NEUTRAL[ac_system]
     if boat and ac_system == "120_60":
         neutral = (*neutral, Colour.BLUE)  # ABYC E-11: white or light blue
-    return line, neutral, EARTH_COLOURS
-
-
-def _name(colour: str) -> str:
-    return Colour(colour).label.lower() if colour in Colour.values else colour
+    return line, neutral, EARTH_OR_BARE
 
 
 def _names(colours: tuple[str, ...]) -> str:
-    ordered = [_name(c) for c in colours]
+    ordered = [colour_name(c) for c in colours]
     return ordered[0] if len(ordered) == 1 else ", ".join(ordered[:-1]) + " or " + ordered[-1]
 
 
-def _wrong(c, code, severity, conductor, colour, allowed, source) -> SystemFinding:
+def _earth_role(c: Circuit) -> str:
+    """Where an earth conductor's colour is recorded: the earth fields, or (older
+    earth-only records) the first colour field."""
+    if c.colour_earth or c.marking_earth_method or not c.colour_a:
+        return "earth"
+    return "a"
+
+
+def _views(c: Circuit, role: str, conductor: str) -> list[tuple[str, str]]:
+    """(colour seen, words for the conductor) for each distinct look of the conductor:
+    once when both ends look alike, else each end with its own words."""
+    seen = {end: seen_colour(c, role, end) for end in ("from", "to")}
+    if seen["from"] == seen["to"]:
+        return [(seen["from"], conductor)] if seen["from"] else []
+    return [(colour, f"{conductor} at the {end} end") for end, colour in seen.items() if colour]
+
+
+def _finding(c, code, severity, text, source) -> SystemFinding:
     return finding(
-        code,
-        severity,
-        f"{describe(c)}: the {conductor} is {_name(colour)}; use {_names(allowed)}.",
-        source,
-        subject=c.tag,
-        circuits=[c.tag],
+        code, severity, f"{describe(c)}: {text}", source, subject=c.tag, circuits=[c.tag]
     )
 
 
-def _earth_on_live(c, conductor, colour, source) -> SystemFinding:
-    return finding(
-        "COLOUR_EARTH_ON_LIVE",
-        BLOCKING,
-        f"{describe(c)}: the {conductor} is {_name(colour)}, a colour reserved for earth; "
-        "someone will take it for a safe earth. Replace it with a conductor in the right colour.",
-        source,
-        subject=c.tag,
-        circuits=[c.tag],
-    )
+def _merged(found: list[SystemFinding]) -> list[SystemFinding]:
+    """One finding per (code, subject), the worst severity, the messages joined: a waiver
+    names a finding by code and subject, so two alike would be one waiver's business."""
+    out: dict[tuple[str, str], SystemFinding] = {}
+    for f in found:
+        key = (f.code, f.subject)
+        if key not in out:
+            out[key] = f
+            continue
+        first = out[key]
+        severity = min(first.severity, f.severity, key=SEVERITY_ORDER.__getitem__)
+        rest = f.message.split(": ", 1)[-1]
+        out[key] = finding(
+            f.code,
+            severity,
+            f"{first.message} Also {rest}",
+            first.source,
+            subject=f.subject,
+            circuits=[*first.circuits, *f.circuits],
+        )
+    return list(out.values())
 
 
-def _live(c, code, conductor, colour, allowed, source) -> list[SystemFinding]:
-    if not colour:
-        return []
-    if colour in EARTH_COLOURS:
-        return [_earth_on_live(c, conductor, colour, source)]
-    if colour not in allowed:
-        return [_wrong(c, code, WARNING, conductor, colour, allowed, source)]
-    return []
+def _live(c, code, role, conductor, allowed, source) -> list[SystemFinding]:
+    if insulation_of(c, role) == BARE:
+        return [
+            _finding(
+                c,
+                "COLOUR_BARE_LIVE",
+                BLOCKING,
+                f"the {conductor} is bare, but it carries current: an uninsulated live "
+                "conductor can be touched and can short to anything it rests on. Replace it "
+                "with an insulated conductor in the right colour.",
+                SOURCE_BARE,
+            )
+        ]
+    out = []
+    for colour, words in _views(c, role, conductor):
+        if colour in EARTH_COLOURS:
+            out.append(
+                _finding(
+                    c,
+                    "COLOUR_EARTH_ON_LIVE",
+                    BLOCKING,
+                    f"the {words} is {colour_name(colour)}, a colour reserved for earth; "
+                    "someone will take it for a safe earth. Replace it with a conductor in "
+                    "the right colour.",
+                    source,
+                )
+            )
+        elif colour not in allowed:
+            text = f"the {words} is {colour_name(colour)}; use {_names(allowed)}."
+            out.append(_finding(c, code, WARNING, text, source))
+    return out
 
 
 def _dc(c: Circuit) -> list[SystemFinding]:
     out: list[SystemFinding] = []
     if c.conductors in (Circuit.Conductors.PAIR, Circuit.Conductors.POSITIVE):
-        out += _live(c, "COLOUR_DC_POSITIVE", "DC positive", c.colour_a, DC_POSITIVE, SOURCE_DC)
+        out += _live(c, "COLOUR_DC_POSITIVE", "a", "DC positive", DC_POSITIVE, SOURCE_DC)
     if c.conductors in (Circuit.Conductors.PAIR, Circuit.Conductors.NEGATIVE):
-        out += _live(c, "COLOUR_DC_NEGATIVE", "DC negative", c.colour_b, DC_NEGATIVE, SOURCE_DC)
+        out += _live(c, "COLOUR_DC_NEGATIVE", "b", "DC negative", DC_NEGATIVE, SOURCE_DC)
     return out
 
 
-def _ac_earth(c: Circuit, colour: str, ac_system: str, source: str) -> list[SystemFinding]:
-    if not colour:
-        return []
-    if colour not in EARTH_COLOURS:
-        return [_wrong(c, "COLOUR_AC_EARTH", BLOCKING, "AC earth", colour, EARTH_COLOURS, source)]
-    if ac_system == "230_50" and colour == Colour.GREEN:
-        return [
-            finding(
-                "COLOUR_AC_EARTH_GREEN",
-                WARNING,
-                f"{describe(c)}: the AC earth is plain green; in a 230 V system the protective "
-                "earth is green-and-yellow only. Use green-and-yellow conductor.",
-                source,
-                subject=c.tag,
-                circuits=[c.tag],
+def _ac_earth(c: Circuit, role: str, ac_system: str, source: str) -> list[SystemFinding]:
+    out = []
+    for colour, words in _views(c, role, "AC earth"):
+        if colour not in EARTH_OR_BARE:
+            text = f"the {words} is {colour_name(colour)}; use {_names(EARTH_OR_BARE)}."
+            out.append(_finding(c, "COLOUR_AC_EARTH", BLOCKING, text, source))
+        elif ac_system == "230_50" and colour == Colour.GREEN:
+            text = (
+                f"the {words} is plain green; in a 230 V system the protective earth is "
+                "green-and-yellow only. Use green-and-yellow conductor."
             )
-        ]
-    return []
+            out.append(_finding(c, "COLOUR_AC_EARTH_GREEN", WARNING, text, source))
+    return out
 
 
 def _ac(c: Circuit, vehicle) -> list[SystemFinding]:
     ac_system = getattr(vehicle, "ac_system", "none")
     line, neutral, _ = ac_colours(ac_system, boat=getattr(vehicle, "kind", "") == "boat")
     source = SOURCE_AC.get(ac_system, SOURCE_AC["none"])
-    out = _live(c, "COLOUR_AC_LINE", "AC line", c.colour_a, line, source)
-    out += _live(c, "COLOUR_AC_NEUTRAL", "AC neutral", c.colour_b, neutral, source)
-    return out + _ac_earth(c, c.colour_earth, ac_system, source)
+    out = _live(c, "COLOUR_AC_LINE", "a", "AC line", line, source)
+    out += _live(c, "COLOUR_AC_NEUTRAL", "b", "AC neutral", neutral, source)
+    return out + _ac_earth(c, "earth", ac_system, source)
 
 
 def _earth_only(c: Circuit, vehicle) -> list[SystemFinding]:
-    colour = c.colour_earth or c.colour_a
+    role = _earth_role(c)
     if c.is_ac:
         ac_system = getattr(vehicle, "ac_system", "none")
-        return _ac_earth(c, colour, ac_system, SOURCE_AC.get(ac_system, SOURCE_AC["none"]))
-    if colour and colour not in EARTH_COLOURS:
-        return [
-            _wrong(
-                c, "COLOUR_BONDING", WARNING, "bonding conductor", colour, EARTH_COLOURS, SOURCE_DC
-            )
-        ]
-    return []
-
-
-def _marking(c: Circuit) -> list[SystemFinding]:
-    out: list[SystemFinding] = []
-    before = c.colour_a or c.colour_earth
-    if c.splice and c.colour_after_splice and before and c.colour_after_splice != before:
-        out.append(
-            finding(
-                "COLOUR_SPLICE_CHANGE",
-                WARNING,
-                f"{describe(c)} changes colour at a splice, from {_name(before)} to "
-                f"{_name(c.colour_after_splice)}; whoever traces it later loses it there. Run "
-                "one colour end to end, or replace the run.",
-                SOURCE_MARKING,
-                subject=c.tag,
-                circuits=[c.tag],
-            )
-        )
-    if c.tape_remarked:
-        out.append(
-            finding(
-                "COLOUR_TAPE_REMARKED",
-                WARNING,
-                f"{describe(c)} is re-marked with tape; tape fades and slips off. Prefer a "
-                "conductor in its own colour, and keep the tape visible at every end.",
-                SOURCE_MARKING,
-                subject=c.tag,
-                circuits=[c.tag],
-            )
-        )
+        return _ac_earth(c, role, ac_system, SOURCE_AC.get(ac_system, SOURCE_AC["none"]))
+    out = []
+    for colour, words in _views(c, role, "bonding conductor"):
+        if colour not in EARTH_OR_BARE:
+            text = f"the {words} is {colour_name(colour)}; use {_names(EARTH_OR_BARE)}."
+            out.append(_finding(c, "COLOUR_BONDING", WARNING, text, SOURCE_DC))
     return out
+
+
+def _splice(c: Circuit) -> list[SystemFinding]:
+    before = c.colour_a or c.colour_earth
+    if not (c.splice and c.colour_after_splice and before and c.colour_after_splice != before):
+        return []
+    return [
+        finding(
+            "COLOUR_SPLICE_CHANGE",
+            WARNING,
+            f"{describe(c)} changes colour at a splice, from {colour_name(before)} to "
+            f"{colour_name(c.colour_after_splice)}; whoever traces it later loses it there. "
+            "Run one colour end to end, or replace the run.",
+            SOURCE_SPLICE,
+            subject=c.tag,
+            circuits=[c.tag],
+        )
+    ]
+
+
+_PERMITS = {
+    "b": "NEC 200.6(B) lets a grounded conductor (the neutral, or a DC negative bonded to "
+    "the chassis) of 4 AWG or larger be re-identified at each end (from memory)",
+    "earth": "NEC 250.119(A) lets an earthing conductor of 4 AWG or larger be re-identified "
+    "at each end (from memory)",
+}
+
+
+def _marking_text(c: Circuit, role: str, conductor: str, large: bool) -> tuple[str, str]:
+    """(severity, words) for one re-marked conductor."""
+    marking = c.marking(role)
+    looks = f"the {conductor} is {colour_text(c, role)}"
+    tape = " Tape fades and slips off; heat-shrink lasts." if marking.method == "tape" else ""
+    unrecorded = "" if marking.colour else " Record the marking's colour."
+    if marking.ends != MarkingEnds.BOTH:
+        other = "to" if marking.ends == MarkingEnds.FROM else "from"
+        shows = colour_name(insulation_of(c, role)) or "its insulation colour"
+        return WARNING, (
+            f"{looks}, so its {other} end shows {shows}. Mark both ends, or use a conductor "
+            f"in its own colour.{tape}{unrecorded}"
+        )
+    if not large:
+        return WARNING, (
+            f"{looks}; re-marking at the ends is accepted only for conductors of 4 AWG "
+            "(21 mm²) and larger (NEC 200.6(B), 250.119(A), from memory). Use a conductor "
+            f"in its own colour.{tape}{unrecorded}"
+        )
+    permit = _PERMITS.get(role) or (
+        "large conductors sold in one colour are commonly re-marked at both ends (common practice)"
+    )
+    return NOTE, f"{looks}; {permit}. Keep the marking visible at every end.{tape}{unrecorded}"
+
+
+def _marking(c: Circuit, sizings) -> list[SystemFinding]:
+    size = installed_size(c, sizings)
+    large = size is not None and size.area_mm2 >= LARGE_MM2
+    kind = "AC" if c.is_ac or c.conductors == Circuit.Conductors.AC else "DC"
+    roles = [
+        (r, "earth" if r == "earth" else f"{kind} {c.role_words(r)}") for r in c.colour_roles()
+    ]
+    if c.conductors == Circuit.Conductors.EARTH or c.role == Circuit.Role.BONDING:
+        roles = [(_earth_role(c), "earth")]
+    found = []
+    for role, conductor in roles:
+        marking = c.marking(role)
+        if marking is None:
+            continue
+        code = "COLOUR_TAPE_REMARKED" if marking.method == MarkingMethod.TAPE else "COLOUR_REMARKED"
+        severity, text = _marking_text(c, role, conductor, large)
+        found.append(_finding(c, code, severity, text, SOURCE_MARKING))
+    return found
 
 
 def _panel_key(device) -> tuple[str, str]:
@@ -210,19 +324,21 @@ def _panel_key(device) -> tuple[str, str]:
 def _black_in_one_panel(circuits: list[Circuit]) -> list[SystemFinding]:
     panels: dict[str, tuple[set[str], list[str], list[str]]] = {}
     for c in circuits:
-        dc_black = (
-            not c.is_ac
-            and c.conductors in (Circuit.Conductors.PAIR, Circuit.Conductors.NEGATIVE)
-            and c.colour_b == BLACK
+        dc_negative = not c.is_ac and c.conductors in (
+            Circuit.Conductors.PAIR,
+            Circuit.Conductors.NEGATIVE,
         )
-        ac_black = c.conductors == Circuit.Conductors.AC and c.colour_a == BLACK
-        if not (dc_black or ac_black):
+        ac_line = c.conductors == Circuit.Conductors.AC
+        if not (dc_negative or ac_line):
             continue
-        for device in (c.from_device, c.to_device):
+        role = "b" if dc_negative else "a"
+        for end, device in (("from", c.from_device), ("to", c.to_device)):
+            if seen_colour(c, role, end) != BLACK:
+                continue  # what shows in this panel is the colour at this end
             key, label = _panel_key(device)
             entry = panels.setdefault(key, (set(), [], []))
             entry[0].add(label)
-            (entry[1] if dc_black else entry[2]).append(c.tag)
+            (entry[1] if dc_negative else entry[2]).append(c.tag)
     out: list[SystemFinding] = []
     for labels, dc_tags, ac_tags in panels.values():
         if not (dc_tags and ac_tags):
@@ -248,15 +364,17 @@ def colours(devices, circuits, vehicle, sizings=None) -> list[SystemFinding]:
     out: list[SystemFinding] = []
     ac_seen = False
     for c in circuits:
+        found: list[SystemFinding] = []
         # A bonding circuit is an earth conductor whatever its conductor choice says.
         if c.conductors == Circuit.Conductors.EARTH or c.role == Circuit.Role.BONDING:
-            out += _earth_only(c, vehicle)
+            found += _earth_only(c, vehicle)
         elif c.conductors == Circuit.Conductors.AC:
             ac_seen = True
-            out += _ac(c, vehicle)
+            found += _ac(c, vehicle)
         elif not c.is_ac:
-            out += _dc(c)
-        out += _marking(c)
+            found += _dc(c)
+        found += _splice(c) + _marking(c, sizings)
+        out += _merged(found)
     out += _black_in_one_panel(circuits)
     if ac_seen and getattr(vehicle, "ac_system", "none") not in _LINE:
         out.append(

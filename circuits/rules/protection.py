@@ -1,13 +1,22 @@
 """Unprotected: every ungrounded conductor leaving a source is protected, close to the source.
 
-A circuit leaves a source when either end device is marked as a source (the direction a
-circuit was entered in does not matter: a main feed entered busbar -> battery still leaves
-the battery). Then:
+A circuit leaves a source when either end device is marked as a source or is an external
+supply (the direction a circuit was entered in does not matter: a main feed entered
+busbar -> battery still leaves the battery). A shore cord runs between two sources, the
+external supply and the inlet; current flows from the supply, so the supply is the
+source it is measured from.
+
+The protection is read from its one home (Circuit.protection): a protection device at one
+end of the run sits at no distance from the source when it is the source (an external
+supply's own breaker) and one circuit length away when it is the far end (a fuse holder
+the run from the battery lands on); the circuit's own in-line protection sits at its
+recorded distance. Then:
 
 * UNPROTECTED_FROM_SOURCE (blocking): no fuse or breaker, so a short anywhere along the run
   is fed by the source's whole fault current. If the far end is a fuse or breaker holder
-  (Device kind "protection"), the protection is taken to sit there, one circuit length from
-  the source, and the distance rule below applies instead.
+  (Device kind "protection") not chosen as the protection (older records), the protection
+  is still taken to sit there, one circuit length from the source, and the distance rule
+  below applies instead.
 * PROTECTION_TOO_FAR (blocking): protection farther from the source than allowed:
   0.178 m (7 in) from a battery, 1.83 m (72 in) from any other source (alternator, shore
   inlet, a source marked as such). When both ends are sources the stricter limit applies.
@@ -65,8 +74,13 @@ def _is_interconnect_between_batteries(c: Circuit) -> bool:
     )
 
 
+def _sources(c: Circuit) -> list[Device]:
+    ends = (c.from_device, c.to_device)
+    return [d for d in ends if d.is_external] or [d for d in ends if d.supplies]
+
+
 def _check(c: Circuit) -> SystemFinding | None:
-    sources = [d for d in (c.from_device, c.to_device) if d.is_source]
+    sources = _sources(c)
     if not sources:
         return None
     if c.role == Circuit.Role.BONDING or c.conductors in _EXEMPT_CONDUCTORS:
@@ -75,9 +89,14 @@ def _check(c: Circuit) -> SystemFinding | None:
         return None
     limit, source, words = _limit(sources)
     far = c.to_device if device_key(source) == device_key(c.from_device) else c.from_device
-    distance = c.protection_distance_m
+    protection = c.protection
+    distance = protection.distance_m
     where = "its protection"
-    if c.protection_type == Circuit.ProtectionType.NONE:
+    if protection.device is not None:
+        at_source = device_key(protection.device) == device_key(source)
+        distance = 0.0 if at_source else float(c.length_m)
+        where = f"the protection in {protection.device}"
+    elif not protection.fitted:
         if far.kind != Device.Kind.PROTECTION or far.is_source:
             return finding(
                 "UNPROTECTED_FROM_SOURCE",

@@ -10,7 +10,9 @@ on the lugs and works them loose. A technician confirms the loop on the circuit
 * SLACK_BODY_CHASSIS (note): chassis at one end, body or battery box at the other. In a
   unibody van these do not move against each other, in a truck with a box body on a
   subframe they do; the note asks the technician to leave slack where needed and confirm.
-A battery box and the body it stands in are taken as one body (no finding).
+A battery box and the body it stands in are taken as one body (no finding). A run to a
+device off the vehicle (an external supply: the shore cord) is a flexible cord plugged in
+at both ends, not a fixed run between bodies (no finding).
 
 Source: common practice; ABYC E-11 conductor support and strain relief (from memory).
 """
@@ -38,7 +40,7 @@ def slack(devices, circuits, vehicle, sizings=None) -> list[SystemFinding]:
         if c.service_loop_confirmed:
             continue
         pair = {c.from_device.mounting, c.to_device.mounting}
-        if len(pair) < 2:
+        if len(pair) < 2 or Mounting.OFF_VEHICLE in pair:
             continue
         if Mounting.ENGINE in pair:
             out.append(

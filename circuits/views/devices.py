@@ -21,7 +21,7 @@ from django.shortcuts import redirect, render
 from django.urls import path
 from django.views.decorators.http import require_GET, require_http_methods
 
-from circuits.forms import DeviceForm, TerminalFormSet
+from circuits.forms import DeviceForm, TerminalFormSet, device_save_values
 from circuits.models import Circuit, Device, Termination
 from circuits.services import device_save
 from circuits.tags import natural_by_tag
@@ -59,14 +59,18 @@ def device_detail(request: HttpRequest, number: str, pk: int) -> HttpResponse:
             Q(end=Termination.End.FROM, circuit__from_device=device)
             | Q(end=Termination.End.TO, circuit__to_device=device)
         )
-        .select_related("circuit", "terminal__device")
+        # The rows link their circuit (its job's number) and name its end's device.
+        .select_related(
+            "circuit__job", "circuit__from_device", "circuit__to_device", "terminal__device"
+        )
         .order_by("circuit__tag", "end", "polarity", "conductor_index")
     )
+    circuits = _circuits_of(device).select_related("job", "from_device", "to_device")
     context = {
         "job": job,
         "device": device,
         "terminals": device.terminals.all(),
-        "circuits": natural_by_tag(_circuits_of(device).select_related("from_device", "to_device")),
+        "circuits": natural_by_tag(circuits),
         "terminations": landing,
     }
     return render(request, "circuits/device_detail.html", context)
@@ -144,7 +148,7 @@ def _save(form, terminals) -> Device | None:
     (someone saved a terminal of the same name at the same moment) is shown beside the
     form, and nothing is saved."""
     try:
-        return device_save(form=form, terminals=terminals)
+        return device_save(**device_save_values(form, terminals))
     except ValidationError as exc:
         # Locked by approval, or a terminal to be removed carries readings.
         form.add_error(None, exc)

@@ -145,13 +145,16 @@ def _slack_asks(circuit: Circuit) -> bool:
 def _circuit_items(circuit: Circuit) -> list[ChecklistItem]:
     tag = circuit.tag
     items = []
-    if circuit.protection_type != Circuit.ProtectionType.NONE:
+    protection = circuit.protection  # its one home: a protection device, or its own
+    if protection.fitted:
         rating = (
-            f"{format_number(circuit.protection_a, 1)} A"
-            if circuit.protection_a is not None
+            f"{format_number(protection.rating_a, 1)} A"
+            if protection.rating_a is not None
             else "no rating recorded"
         )
-        basis = f"{circuit.get_protection_type_display().lower()} {rating}"
+        kind = Circuit.ProtectionType(protection.kind).label.lower()
+        where = f" in {protection.device.name}" if protection.device is not None else ""
+        basis = f"{kind} {rating}{where}"
         items.append(
             ChecklistItem(
                 key=f"circuit:{circuit.pk}:protection",

@@ -26,7 +26,10 @@ COMPARED = [
     "tag", "name", "role", "nominal_voltage", "design_current_a", "continuous", "critical",
     "length_unit", "conductor_size", "conductors", "parallel", "construction", "tinned",
     "insulation_c", "engine_space", "bundled", "colour_a", "colour_b", "colour_earth", "splice",
-    "colour_after_splice", "tape_remarked", "protection_type", "protection_a",
+    "colour_after_splice", "marking_a_method", "marking_a_colour", "marking_a_ends",
+    "marking_b_method", "marking_b_colour", "marking_b_ends", "marking_earth_method",
+    "marking_earth_colour", "marking_earth_ends", "protection_type",
+    "protection_a",
     "protection_distance_m", "service_loop_confirmed", "notes",
 ]  # fmt: skip
 
@@ -53,7 +56,8 @@ def _system():
     make_circuit(job, d["Busbar"], d["Fridge, galley"], tag="D-01", name="Fridge",
                  conductor_size="12", length_m=10 * 0.3048, length_unit="ft",
                  continuous=True, critical=True, tinned=False, engine_space=True, bundled=3,
-                 splice=True, colour_after_splice="brown", tape_remarked=True,
+                 splice=True, colour_after_splice="brown", colour_b="black",
+                 marking_b_method="heat_shrink", marking_b_colour="yellow", marking_b_ends="to",
                  service_loop_confirmed=True, construction="standard",
                  protection_type="breaker", protection_a=Decimal("7.5"))  # fmt: skip
     make_circuit(job, d["Shore inlet"], d["Inverter/charger"], tag="S-01", name="=Shore cord",
@@ -70,6 +74,7 @@ def _snapshot(job) -> dict[str, dict]:
         row["from"] = (c.from_device.name, c.from_terminal.name if c.from_terminal else None)
         row["to"] = (c.to_device.name, c.to_terminal.name if c.to_terminal else None)
         row["ends"] = c.terminations.count()
+        row["protection_device"] = c.protection_device.name if c.protection_device else None
         out[c.tag] = row
     return out
 

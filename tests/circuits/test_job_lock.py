@@ -15,7 +15,7 @@ from django.test import Client
 from django.urls import reverse
 
 from circuits.csv_io import circuits_from_csv, circuits_to_csv
-from circuits.forms import DeviceForm, TerminalFormSet
+from circuits.forms import DeviceForm, TerminalFormSet, device_save_values
 from circuits.models import Circuit, Device, Termination, Waiver
 from circuits.services import (
     circuit_create,
@@ -102,7 +102,7 @@ def test_every_system_write_is_refused_while_locked(locked, circuit, spare, lead
     _refused(lambda: circuit_delete(circuit=circuit, user=lead))
     _refused(lambda: device_delete(device=spare, user=lead))
     form, terminals = _device_forms(job, spare)
-    _refused(lambda: device_save(form=form, terminals=terminals))
+    _refused(lambda: device_save(**device_save_values(form, terminals)))
     termination = circuit.terminations.first()
     termination.torque_value = Decimal("12")
     _refused(lambda: termination_update(termination=termination))
@@ -154,7 +154,7 @@ def test_after_a_reopen_the_writes_go_through(locked, circuit, spare, lead):
     termination.torque_value = Decimal("12")
     termination_update(termination=termination)
     form, terminals = _device_forms(job, spare)
-    device_save(form=form, terminals=terminals)
+    device_save(**device_save_values(form, terminals))
     job_update(job=job, title="Changed after reopen")
     circuit_delete(circuit=created, user=lead)
     device_delete(device=spare, user=lead)

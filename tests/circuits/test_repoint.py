@@ -12,7 +12,7 @@ import pytest
 from django.core.exceptions import ValidationError
 from django.test import Client
 
-from circuits.forms import DeviceForm, TerminalFormSet
+from circuits.forms import DeviceForm, TerminalFormSet, device_save_values
 from circuits.models import Circuit, Terminal, Termination
 from circuits.services import circuit_delete, circuit_update, device_save
 from inspections.models import Stage
@@ -126,7 +126,7 @@ def test_a_terminal_with_read_ends_cannot_be_removed_from_its_device(job, read_t
     assert form.is_valid(), form.errors
     assert formset.is_valid(), formset.errors
     with pytest.raises(ValidationError) as caught:
-        device_save(form=form, terminals=formset)
+        device_save(**device_save_values(form, formset))
     assert "readings" in " ".join(caught.value.messages)
     assert Terminal.objects.filter(pk=read_to_end.terminal_id).exists()
     assert _where(read_to_end)[0] == read_to_end.terminal_id

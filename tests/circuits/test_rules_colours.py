@@ -192,9 +192,18 @@ def test_splice_that_changes_colour_is_a_warning():
     assert found.subject == "D-01" and "red to brown" in found.message
 
 
-def test_tape_remarking_is_a_warning():
+def test_tape_remarking_of_a_small_conductor_is_a_warning():
+    # NEC 2023 200.6(B) / 250.119(A) (from memory): re-identification at the ends only
+    # for 4 AWG and larger; the default test circuit is smaller.
     job = _job()
-    _dc(job, colour_a="red", colour_b="black", tape_remarked=True)
+    _dc(
+        job,
+        colour_a="black",
+        colour_b="black",
+        marking_a_method="tape",
+        marking_a_colour="red",
+        marking_a_ends="both",
+    )
     [found] = findings_for(job, "COLOUR_TAPE_REMARKED")
     assert found.severity == "warning"
 

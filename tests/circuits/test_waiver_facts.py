@@ -216,6 +216,8 @@ def test_a_code_it_does_not_know_rests_on_every_device_and_vehicle_fact():
         "mounting",
         "enclosure",
         "input_current_a",
+        "protection_a",
+        "supply_voltage",
     }
     assert set(facts["vehicle"]) == {"kind", "ac_system", "near_salt_water"}
 

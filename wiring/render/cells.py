@@ -62,15 +62,14 @@ def _schedule_row(c: dict, key: SourceKeys) -> dict:
     else:
         protection = (
             f"{floatformat(c['protection_a'], '-1')} A {c['protection_type_label'].lower()}"
-        )
+        ) + (f" in {c['protection_device']}" if c.get("protection_device") else "")
     row = {
         "tag": _lines(c["tag"], c["name"], c["role_label"]),
         "route": route,
         "conductor": _lines(size, build),
         "colours": _lines(
-            colours,
+            *[f"{t['conductor']} {t['text']}" for t in c.get("colour_texts", [])] or [colours],
             "spliced" if c["splice"] else None,
-            "tape re-marked" if c["tape_remarked"] else None,
         ),
         "length": c["length_display"],
         "current": current,

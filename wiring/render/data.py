@@ -21,6 +21,7 @@ from circuits.sizing.report import CAUTION
 from circuits.system import CircuitSizing, SystemReport, job_system_report
 from circuits.tags import tag_key
 from shop.models import ShopProfile
+from wiring.render.changes import changes_data
 from wiring.render.evidence import evidence_data
 
 SCHEMA = "ampwright.wiring-record"
@@ -122,6 +123,9 @@ def _device(device: Device) -> dict:
         "enclosure": device.enclosure,
         "location": device.location,
         "input_current_a": text(device.input_current_a),
+        "protection_type": device.protection_type,
+        "protection_a": text(device.protection_a),
+        "supply_voltage": text(device.supply_voltage),
         "notes": device.notes,
         "terminals": [
             {
@@ -190,6 +194,7 @@ def _sizing(row: CircuitSizing) -> dict | None:
 
 
 COLOUR_FIELDS = ("colour_a", "colour_b", "colour_earth", "colour_after_splice")
+MARKING_ROLES, MARKING_PARTS = ("a", "b", "earth"), ("method", "colour", "ends")
 
 
 def _circuit(row: CircuitSizing) -> dict:
@@ -229,10 +234,18 @@ def _circuit(row: CircuitSizing) -> dict:
         **colours,
         "colour_labels": {k: v for k, v in labels.items() if v},
         "splice": c.splice,
-        "tape_remarked": c.tape_remarked,
-        "protection_type": c.protection_type,
-        "protection_type_label": c.get_protection_type_display(),
-        "protection_a": text(c.protection_a),
+        "tape_remarked": c.tape_remarked,  # any conductor re-marked with tape
+        **{
+            f"marking_{r}_{p}": getattr(c, f"marking_{r}_{p}")
+            for r in MARKING_ROLES
+            for p in MARKING_PARTS
+        },
+        "colour_texts": [{"conductor": who, "text": t} for who, t in c.colour_texts()],
+        # The protection from its one home: the protection device's, or the circuit's own.
+        "protection_device": c.protection_device.name if c.protection_device_id else "",
+        "protection_type": c.protection.kind,
+        "protection_type_label": Circuit.ProtectionType(c.protection.kind).label,
+        "protection_a": text(c.protection.rating_a),
         "protection_distance_m": c.protection_distance_m,
         "service_loop_confirmed": c.service_loop_confirmed,
         "notes": c.notes,
@@ -293,5 +306,6 @@ def record_data_from(
         ],
         "findings": _findings(report),
         **evidence_data(job),
+        "changes": changes_data(job),  # a return visit's change since the last record
         "cautions": list(CAUTIONS),
     }

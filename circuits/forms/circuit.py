@@ -1,11 +1,12 @@
-"""Forms of the electrical-system pages: circuits, devices and their terminals,
-terminations, the shop's default torque specs, and waivers.
+"""The circuit form: what a run is, its ends, load, conductor, protection (one home:
+a protection device at one end of the run, or the circuit's own in-line fuse or breaker,
+never both), colours and re-marking.
 
 Lengths are typed with their unit ("10 ft", "3 m", "120 in") and every number is read by
 the one strict parser (circuits.sizing.quantity, through circuits.entry) with the ranges
 of its LIMITS table; a bad entry is a ValidationError beside the field, never a 500.
 Record choices read their ids strictly (shop.fields). Model rules (Circuit.clean, the
-unique constraints) still run through the ModelForm's validation.
+constraints) still run through the ModelForm's validation.
 """
 
 from __future__ import annotations
@@ -15,48 +16,30 @@ from decimal import Decimal
 from django import forms
 from django.core.exceptions import ValidationError
 
-from circuits.entry import check_entry, number_entry, parse_length_entry
+from circuits.entry import check_entry, parse_length_entry
 from circuits.form_fields import strict_field
-from circuits.models import (
-    Circuit,
-    Device,
-    Terminal,
-    Termination,
-    TorqueDefault,
-    format_length,
-)
-from circuits.services import MIN_WAIVER_REASON
+from circuits.forms.common import AC_ROLES, AC_VOLTS, TerminalChoiceField, as_typed
+from circuits.models import Circuit, Device, Terminal, format_length
 from circuits.sizing import SizeNotationError, parse_size
 from shop.fields import IdChoiceField, parse_id
 
-# Nominal AC voltage of each vehicle AC system, for AC circuits left blank.
-AC_VOLTS = {"120_60": Decimal("120"), "230_50": Decimal("230")}
-_AC_ROLES = (Circuit.Role.SHORE_SUPPLY, Circuit.Role.AC_BRANCH)
+NONE, INLINE, DEVICE = "none", "inline", "device"
+PROTECTION_HOMES = [
+    (DEVICE, "A protection device at one end of this run (fuse or breaker holder, or the "
+     "external supply's breaker)"),
+    (INLINE, "Its own in-line fuse or breaker (a holder with no terminals of its own)"),
+    (NONE, "No protection"),
+]  # fmt: skip
+MARKING_FIELDS = [
+    f"marking_{role}_{part}"
+    for role in ("a", "b", "earth")
+    for part in ("method", "colour", "ends")
+]
 
 
-def _check_torque(form: forms.ModelForm, value_name: str, unit_name: str) -> None:
-    """A torque typed as a bare number in the unit chosen beside it, within
-    LIMITS["torque"] once converted to N·m."""
-    value, unit = form.cleaned_data.get(value_name), form.cleaned_data.get(unit_name)
-    if value is None or not unit:
-        return
-    try:
-        number_entry(value, unit, kind="torque", field="torque")
-    except ValidationError as exc:
-        form.add_error(value_name, exc)
-
-
-class _TerminalChoiceField(IdChoiceField):
-    """Terminal choices: 'B+ (DC positive)', prefixed with the device when the list
-    spans several devices."""
-
-    def __init__(self, *args, with_device: bool = True, **kwargs):
-        self.with_device = with_device
-        super().__init__(*args, **kwargs)
-
-    def label_from_instance(self, obj: Terminal) -> str:
-        label = f"{obj.name} ({obj.get_polarity_display()})"
-        return f"{obj.device.name}: {label}" if self.with_device else label
+class _ProtectionDeviceField(IdChoiceField):
+    def label_from_instance(self, obj: Device) -> str:
+        return f"{obj.name} ({obj.protection_display})"
 
 
 class CircuitForm(forms.ModelForm):
@@ -66,6 +49,14 @@ class CircuitForm(forms.ModelForm):
         help_text='With its unit: "10 ft", "3 m", "120 in". A bare number is taken in the '
         "unit chosen beside it.",
         widget=forms.TextInput(attrs={"inputmode": "decimal", "autocomplete": "off"}),
+    )
+    protection_home = forms.ChoiceField(
+        label="Where the protection is",
+        choices=PROTECTION_HOMES,
+        required=False,
+        widget=forms.RadioSelect,
+        help_text="One home for the protection: a device's fuse or breaker, or the circuit's "
+        "own; never both.",
     )
     protection_distance = forms.CharField(
         label="Protection distance from source",
@@ -99,15 +90,19 @@ class CircuitForm(forms.ModelForm):
             "insulation_c",
             "engine_space",
             "bundled",
+            "protection_home",
+            "protection_device",
             "protection_type",
             "protection_a",
             "protection_distance",
             "colour_a",
+            *MARKING_FIELDS[0:3],
             "colour_b",
+            *MARKING_FIELDS[3:6],
             "colour_earth",
+            *MARKING_FIELDS[6:9],
             "splice",
             "colour_after_splice",
-            "tape_remarked",
             "service_loop_confirmed",
             "notes",
         ]
@@ -116,6 +111,20 @@ class CircuitForm(forms.ModelForm):
             "nominal_voltage": "Nominal voltage (V)",
             "conductor_size": "Conductor size",
             "insulation_c": "Insulation rating",
+            "protection_type": "In-line: fuse or breaker",
+            "protection_a": "In-line: rating (A)",
+            "colour_a": "Insulation: positive / line",
+            "colour_b": "Insulation: negative / neutral",
+            "colour_earth": "Insulation: earth",
+            "marking_a_method": "Re-marked with",
+            "marking_a_colour": "Marking colour",
+            "marking_a_ends": "Marked at",
+            "marking_b_method": "Re-marked with",
+            "marking_b_colour": "Marking colour",
+            "marking_b_ends": "Marked at",
+            "marking_earth_method": "Re-marked with",
+            "marking_earth_colour": "Marking colour",
+            "marking_earth_ends": "Marked at",
         }
         help_texts = {
             "conductor_size": "Trade notation: 4/0, 2 AWG, #6, 35 mm². Blank: recommend one.",
@@ -128,7 +137,11 @@ class CircuitForm(forms.ModelForm):
             "protection_a": forms.NumberInput(attrs={"step": "any", "inputmode": "decimal"}),
             "conductor_size": forms.TextInput(attrs={"autocomplete": "off"}),
         }
-        field_classes = {"from_device": IdChoiceField, "to_device": IdChoiceField}
+        field_classes = {
+            "from_device": IdChoiceField,
+            "to_device": IdChoiceField,
+            "protection_device": _ProtectionDeviceField,
+        }
 
     def __init__(self, *args, job, for_save: bool = True, **kwargs):
         super().__init__(*args, **kwargs)
@@ -138,6 +151,26 @@ class CircuitForm(forms.ModelForm):
         devices = Device.objects.filter(job=job).order_by("name")
         self.fields["from_device"].queryset = devices
         self.fields["to_device"].queryset = devices
+        protecting = devices.filter(kind__in=Device.PROTECTING_KINDS)
+        field = self.fields["protection_device"]
+        field.queryset = protecting
+        field.required = False
+        field.label = "Protection device"
+        field.help_text = (
+            "The fuse or breaker holder, or external supply, this run starts or ends at."
+        )
+        field.error_messages["invalid_choice"] = (
+            "Choose a fuse or breaker holder or an external supply of this job."
+        )
+        # The in-line protection is fuse or breaker; "none" is a choice of the home above.
+        self.fields["protection_type"].choices = [("", "---------")] + [
+            c for c in Circuit.ProtectionType.choices if c[0] != Circuit.ProtectionType.NONE
+        ]
+        if not self.is_bound and self.instance.protection_type == Circuit.ProtectionType.NONE:
+            self.initial["protection_type"] = ""  # nothing in-line: the select shows so
+        self.fields["protection_type"].required = False
+        if not self.is_bound:
+            self.initial["protection_home"] = self._saved_home()
         for side in ("from", "to"):
             self.fields[f"{side}_terminal"] = self._terminal_field(side)
         # A blank conductor size asks the live panel for a recommendation; saving still
@@ -159,7 +192,7 @@ class CircuitForm(forms.ModelForm):
         hint = f"Blank: {volts:g} V for DC" + (f", {ac:g} V for AC." if ac else ".")
         self.fields["nominal_voltage"].help_text = hint
         self.fields["nominal_voltage"].widget.attrs["placeholder"] = f"{volts:g}"
-        _as_typed(self, ("design_current_a", "nominal_voltage", "protection_a"))
+        as_typed(self, ("design_current_a", "nominal_voltage", "protection_a"))
         if self.instance.pk and not self.is_bound:
             unit = self.instance.length_unit
             self.initial["length"] = format_length(self.instance.length_m, unit)
@@ -167,13 +200,21 @@ class CircuitForm(forms.ModelForm):
                 self.instance.protection_distance_m, unit
             )
 
-    def _terminal_field(self, side: str) -> _TerminalChoiceField:
+    def _saved_home(self) -> str:
+        instance = self.instance
+        if instance.protection_device_id:
+            return DEVICE
+        if instance.pk and instance.protection_type == Circuit.ProtectionType.NONE:
+            return NONE
+        return INLINE
+
+    def _terminal_field(self, side: str) -> TerminalChoiceField:
         old = self.fields[f"{side}_terminal"]
         device_id = self._chosen(f"{side}_device")
         terminals = Terminal.objects.filter(device__job=self.job).select_related("device")
         if device_id:
             terminals = terminals.filter(device_id=device_id)
-        return _TerminalChoiceField(
+        return TerminalChoiceField(
             queryset=terminals.order_by("device__name", "name"),
             required=False,
             with_device=not device_id,
@@ -198,7 +239,7 @@ class CircuitForm(forms.ModelForm):
         """Nominal voltage for a blank entry: the vehicle's DC system, or its AC system for
         AC circuits (None when the vehicle has no AC)."""
         vehicle = self.job.vehicle
-        if role in _AC_ROLES:
+        if role in AC_ROLES:
             return AC_VOLTS.get(vehicle.ac_system)
         return Decimal(vehicle.dc_voltage)
 
@@ -228,6 +269,7 @@ class CircuitForm(forms.ModelForm):
         if "length" in data:
             self._clean_length(data, unit)
         self._clean_protection_distance(data, unit)
+        self._clean_protection_home(data)
         if data.get("nominal_voltage") is not None:
             self._check_voltage(data)
         elif "nominal_voltage" not in self.errors:
@@ -241,9 +283,60 @@ class CircuitForm(forms.ModelForm):
                 data["nominal_voltage"] = volts
         return data
 
+    def _clean_protection_home(self, data: dict) -> None:
+        """One home for the protection: the chosen home's fields, and nothing in the other's.
+        A post without the choice (a script, an older page) is read from what it fills."""
+        home = data.get("protection_home") or ""
+        device = data.get("protection_device")
+        own_type = data.get("protection_type") or ""
+        if not home:
+            if device is not None:
+                home = DEVICE
+            elif own_type in ("", Circuit.ProtectionType.NONE):
+                home = NONE if "protection_type" in self.data or self.instance.pk else INLINE
+            else:
+                home = INLINE
+        data["protection_home"] = home
+        rating, distance = data.get("protection_a"), data.get("protection_distance_m")
+        if home == DEVICE:
+            if device is None and "protection_device" not in self.errors:
+                self.add_error("protection_device", "Choose the protection device.")
+            if rating is not None:
+                self.add_error(
+                    "protection_a",
+                    "The rating is read from the protection device; clear this, or choose "
+                    "in-line protection.",
+                )
+            if distance is not None:
+                self.add_error(
+                    "protection_distance",
+                    "A protection device's position follows from its end of the run; clear "
+                    "this, or choose in-line protection.",
+                )
+            own_type = Circuit.ProtectionType.NONE
+            # The errors above stand; the model sees one home only.
+            data["protection_a"] = data["protection_distance_m"] = None
+            self.instance.protection_a = self.instance.protection_distance_m = None
+        elif device is not None:
+            self.add_error(
+                "protection_device",
+                "Choose 'a protection device' above to use it, or clear it.",
+            )
+        if home == INLINE:
+            if own_type in ("", Circuit.ProtectionType.NONE):
+                self.add_error("protection_type", "Choose fuse or breaker for in-line protection.")
+        elif home == NONE:
+            if rating is not None:
+                self.add_error("protection_a", "Choose in-line protection to give a rating.")
+            own_type = Circuit.ProtectionType.NONE
+        data["protection_type"] = own_type
+        self.instance.protection_type = own_type
+        if home != DEVICE:
+            data["protection_device"] = None
+
     def _check_voltage(self, data: dict) -> None:
         """The range of the circuit's kind (LIMITS["dc_voltage"] or ["ac_voltage"])."""
-        field = "ac_voltage" if data.get("role") in _AC_ROLES else "dc_voltage"
+        field = "ac_voltage" if data.get("role") in AC_ROLES else "dc_voltage"
         volts = data["nominal_voltage"]
         try:
             check_entry(float(volts), field=field, what="nominal voltage", shown=f"{volts} V")
@@ -276,7 +369,7 @@ class CircuitForm(forms.ModelForm):
     def circuit_fields(self) -> dict:
         """The model fields to save, for circuits.services.circuit_create/update."""
         data = dict(self.cleaned_data)
-        for name in ("length", "protection_distance"):
+        for name in ("length", "protection_distance", "protection_home"):
             data.pop(name, None)
         return data
 
@@ -305,6 +398,9 @@ class CircuitForm(forms.ModelForm):
         protection = data.get("protection_a")
         if data.get("protection_type") == Circuit.ProtectionType.NONE:
             protection = None
+        device = data.get("protection_device")
+        if isinstance(device, Device) and data.get("protection_home") == DEVICE:
+            protection = device.protection_a  # the sizing reads the one home's rating
         return Circuit(
             job=self.job,
             tag=data.get("tag") or self.instance.tag,
@@ -323,178 +419,3 @@ class CircuitForm(forms.ModelForm):
             tinned=bool(data.get("tinned")),
             protection_a=protection,
         )
-
-
-class DeviceForm(forms.ModelForm):
-    class Meta:
-        model = Device
-        fields = [
-            "name",
-            "kind",
-            "is_source",
-            "mounting",
-            "enclosure",
-            "location",
-            "input_current_a",
-            "notes",
-        ]
-        widgets = {
-            "notes": forms.Textarea(attrs={"rows": 3}),
-            "input_current_a": forms.NumberInput(attrs={"step": "any", "inputmode": "decimal"}),
-        }
-
-    def __init__(self, *args, job, **kwargs):
-        super().__init__(*args, **kwargs)
-        self.job = job
-        self.instance.job = job
-        strict_field(self, "input_current_a", kind="current", field="input_current")
-
-    def clean_name(self) -> str:
-        name = self.cleaned_data["name"].strip()
-        clash = Device.objects.filter(job=self.job, name__iexact=name).exclude(pk=self.instance.pk)
-        if clash.exists():
-            raise ValidationError(f"This job already has a device named {name}.")
-        return name
-
-
-def _as_typed(form: forms.ModelForm, names: tuple[str, ...]) -> None:
-    """Show a saved record's decimals as a person types them ("9", not "9.00")."""
-    if form.instance.pk and not form.is_bound:
-        for name in names:
-            value = getattr(form.instance, name)
-            if value is not None:
-                form.initial[name] = format(Decimal(value).normalize(), "f")
-
-
-class TerminalForm(forms.ModelForm):
-    def __init__(self, *args, **kwargs):
-        super().__init__(*args, **kwargs)
-        _as_typed(self, ("manual_torque_value",))
-        strict_field(self, "manual_torque_value", kind="number", field="torque_number")
-
-    def clean(self) -> dict:
-        data = super().clean()
-        _check_torque(self, "manual_torque_value", "manual_torque_unit")
-        return data
-
-    class Meta:
-        model = Terminal
-        fields = ["name", "polarity", "stud_size", "manual_torque_value", "manual_torque_unit"]
-        labels = {
-            "manual_torque_value": "Torque",
-            "manual_torque_unit": "Unit",
-            "stud_size": "Stud / screw",
-        }
-        help_texts = {"name": ""}  # said once above the rows instead
-        widgets = {
-            "manual_torque_value": forms.NumberInput(attrs={"step": "any", "inputmode": "decimal"}),
-        }
-
-
-TerminalFormSet = forms.inlineformset_factory(
-    Device, Terminal, form=TerminalForm, extra=2, can_delete=True
-)
-
-
-class TerminationForm(forms.ModelForm):
-    def __init__(self, *args, **kwargs):
-        super().__init__(*args, **kwargs)
-        _as_typed(self, ("torque_value", "torque_tolerance_pct"))
-        strict_field(self, "torque_value", kind="number", field="torque_number")
-        strict_field(self, "torque_tolerance_pct", kind="percent", field="tolerance")
-
-    class Meta:
-        model = Termination
-        fields = [
-            "kind",
-            "stud_size",
-            "torque_value",
-            "torque_unit",
-            "torque_tolerance_pct",
-            "torque_source",
-            "torque_source_note",
-        ]
-        labels = {
-            "torque_value": "Torque",
-            "torque_unit": "Unit",
-            "torque_tolerance_pct": "Tolerance (± %)",
-            "torque_source": "Where the value comes from",
-            "torque_source_note": "Source note",
-        }
-        help_texts = {
-            "torque_value": "Blank: take the device manual's value or the shop default.",
-        }
-        widgets = {
-            "torque_value": forms.NumberInput(attrs={"step": "any", "inputmode": "decimal"}),
-            "torque_tolerance_pct": forms.NumberInput(
-                attrs={"step": "any", "inputmode": "decimal"}
-            ),
-        }
-
-    def clean(self) -> dict:
-        data = super().clean()
-        _check_torque(self, "torque_value", "torque_unit")
-        value, source = data.get("torque_value"), data.get("torque_source")
-        if value is not None and source == Termination.SpecSource.NONE:
-            self.add_error(
-                "torque_source", "Say where this torque value comes from before saving it."
-            )
-        return data
-
-    @property
-    def refill(self) -> bool:
-        """A blank torque asks for the manual's value or the shop default."""
-        return self.cleaned_data.get("torque_value") is None
-
-
-class TorqueDefaultForm(forms.ModelForm):
-    def __init__(self, *args, **kwargs):
-        super().__init__(*args, **kwargs)
-        _as_typed(self, ("value", "tolerance_pct"))
-        strict_field(self, "value", kind="number", field="torque_number")
-        strict_field(self, "tolerance_pct", kind="percent", field="tolerance")
-
-    def clean(self) -> dict:
-        data = super().clean()
-        _check_torque(self, "value", "unit")
-        return data
-
-    class Meta:
-        model = TorqueDefault
-        fields = ["stud_size", "kind", "value", "unit", "tolerance_pct", "source"]
-        labels = {"value": "Torque", "tolerance_pct": "Tolerance (± %)"}
-        widgets = {
-            "value": forms.NumberInput(attrs={"step": "any", "inputmode": "decimal"}),
-            "tolerance_pct": forms.NumberInput(attrs={"step": "any", "inputmode": "decimal"}),
-        }
-
-
-class WaiverForm(forms.Form):
-    code = forms.CharField(max_length=60, widget=forms.HiddenInput)
-    subject = forms.CharField(max_length=120, widget=forms.HiddenInput)
-    reason = forms.CharField(
-        label="Reason",
-        widget=forms.Textarea(attrs={"rows": 3}),
-        help_text=f"At least {MIN_WAIVER_REASON} characters; shown with your name and the time.",
-        error_messages={"required": "Write why this finding is accepted."},
-    )
-
-    def clean_reason(self) -> str:
-        reason = self.cleaned_data["reason"].strip()
-        if len(reason) < MIN_WAIVER_REASON:
-            raise ValidationError(
-                f"Explain the waiver in at least {MIN_WAIVER_REASON} characters "
-                f"({len(reason)} so far)."
-            )
-        return reason
-
-
-__all__ = [
-    "CircuitForm",
-    "DeviceForm",
-    "TerminalFormSet",
-    "TerminationForm",
-    "TorqueDefaultForm",
-    "WaiverForm",
-    "format_length",
-]
