@@ -14,6 +14,8 @@ from inspections.models import (
     AuditEvent,
     ChecklistMark,
     HeatCycleRun,
+    PriorReading,
+    PriorRecord,
     ShopChecklistItem,
     SignOff,
     Stage,
@@ -21,6 +23,7 @@ from inspections.models import (
     ThermalWaiver,
     TorqueRecord,
     TorqueWrench,
+    WrenchCalibration,
 )
 
 
@@ -94,6 +97,24 @@ class AuditEventAdmin(ReadOnlyAdmin):
 class ThermalWaiverAdmin(ReadOnlyAdmin):
     list_display = ["reading", "lead", "waived_at", "reason"]
     search_fields = ["reading__run__job__number", "reason"]
+
+
+@admin.register(WrenchCalibration)
+class WrenchCalibrationAdmin(ReadOnlyAdmin):
+    list_display = ["wrench", "calibrated_on", "due_on", "done_by", "as_found_error_pct"]
+    search_fields = ["wrench__code", "certificate", "done_by"]
+
+
+@admin.register(PriorRecord)
+class PriorRecordAdmin(ReadOnlyAdmin):
+    list_display = ["job", "source", "job_number", "shop_name", "approved_at"]
+    search_fields = ["job__number", "job_number", "shop_name"]
+
+
+@admin.register(PriorReading)
+class PriorReadingAdmin(ReadOnlyAdmin):
+    list_display = ["record", "label", "pass_name", "value", "unit", "result", "found_loose"]
+    search_fields = ["record__job__number", "label"]
 
 
 @admin.register(ChecklistMark)

@@ -32,6 +32,7 @@ from django.utils import timezone
 
 from circuits.models import Circuit, Termination, TerminationKind
 from circuits.services import circuit_update, termination_update
+from inspections import demo_calibration
 from inspections.demo_retrofit import retrofit_system_load
 from inspections.demo_work import Work, signature_png, terminations_of
 from inspections.models import (
@@ -138,7 +139,7 @@ def specs_fill(job) -> None:
 def untouched(job) -> bool:
     """As job_create left it: first install open, the rest not started, nothing recorded."""
     states = dict(Stage.objects.filter(job=job).values_list("kind", "state"))
-    expected = {kind: Stage.State.NOT_STARTED for kind in Stage.Kind}
+    expected = {kind: Stage.State.NOT_STARTED for kind in Stage.BUILD_KINDS}
     expected[Stage.Kind.FIRST_INSTALL] = Stage.State.OPEN
     if states != expected:
         return False
@@ -402,6 +403,7 @@ def load(*, users: dict, passwords: dict[str, str]) -> list[str]:
     people = People(users, passwords)
     wrenches = [w for w in wrenches_load() if w.in_service]
     shop_items_load(people["oscar"])
+    demo_calibration.load(office=people["oscar"])
     skipped = []
     for seed, (ident, title, scenario) in enumerate(SCENARIOS, start=1):
         job = Job.objects.filter(vehicle__identification=ident, title=title).first()

@@ -2,7 +2,16 @@
 
 from __future__ import annotations
 
-from inspections.views import checklists, heat, office, review, signing, torque
+from inspections.views import (
+    calibration,
+    checklists,
+    heat,
+    office,
+    return_visit,
+    review,
+    signing,
+    torque,
+)
 
 urlpatterns = [
     *torque.urlpatterns,
@@ -11,4 +20,6 @@ urlpatterns = [
     *office.urlpatterns,
     *signing.urlpatterns,
     *review.urlpatterns,
+    *calibration.urlpatterns,
+    *return_visit.urlpatterns,
 ]

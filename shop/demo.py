@@ -19,6 +19,7 @@ from django.utils import timezone
 
 from circuits import demo as circuits_demo
 from inspections import demo as inspections_demo
+from inspections import demo_history
 from shop import roles
 from shop.models import Job, Owner, ShopProfile, Vehicle
 from shop.services import job_create
@@ -53,6 +54,12 @@ OWNERS = [
         "email": "tomasz@owners.example",
         "phone": "555-0192",
         "address": "3 Harbour Steps\nPortmellin",
+    },
+    {
+        "name": "Wren Castellane",
+        "email": "wren@owners.example",
+        "phone": "555-0163",
+        "address": "5 Millrace Cottages\nUpper Sallow",
     },
     {
         "name": "Priya and Sol Ardent",
@@ -112,6 +119,17 @@ VEHICLES = [
         notes="Rear-garage motorhome, 230 V AC.",
     ),
     DemoVehicle(
+        "wren@owners.example",
+        "van",
+        "Tallowby",
+        "Runabout 5",
+        2020,
+        demo_history.COMPACT_VIN,
+        12,
+        "none",
+        notes="Compact camper van, 12 V only; back each year for its re-check.",
+    ),
+    DemoVehicle(
         "tomasz@owners.example",
         "boat",
         "Whitlow Marine",
@@ -169,6 +187,26 @@ JOBS = [
         "june",
         ["ravi"],
     ),
+    # The shop's history (inspections.demo_history): approved over the past months.
+    (
+        demo_history.COMPACT_VIN,
+        demo_history.COMPACT_BUILD,
+        "House battery under the passenger seat, 200 W roof panel, fridge and lights.",
+        396,
+        "june",
+        ["ravi"],
+    ),
+    *(
+        (
+            ident,
+            demo_history.ADD_ON,
+            "A second roof panel with its own controller.",
+            days + 1,
+            "june",
+            ["ravi"],
+        )  # fmt: skip
+        for ident, _, days, _ in demo_history.ADD_ONS
+    ),
 ]
 
 DEMO_EMAILS = {o["email"] for o in OWNERS}
@@ -178,6 +216,8 @@ DEMO_IDENTIFICATIONS = {v.identification for v in VEHICLES}
 def foreign_records() -> dict[str, int]:
     """Counts of records that the demo did not create (owners, vehicles, jobs)."""
     jobs_keys = {(ident, title) for ident, title, *_ in JOBS}
+    # The compact van's return visit is booked by the demo's history from its approved job.
+    jobs_keys.add((demo_history.COMPACT_VIN, demo_history.RETURN_TITLE))
     foreign_jobs = sum(
         1
         for ident, title in Job.objects.values_list("vehicle__identification", "title")
@@ -254,7 +294,10 @@ def load() -> list[tuple[str, str, str]]:
         # Each demo job's electrical system, and the shop's default torque specs.
         circuits_demo.load(lead=users["june"])
         # The wrenches, and the work on each job up to the stage it is shown at.
-        inspections_demo.load(users=users, passwords={username: pw for username, *_, pw in STAFF})
+        passwords = {username: pw for username, *_, pw in STAFF}
+        inspections_demo.load(users=users, passwords=passwords)
+        # Approved jobs over the past months and the compact van's return visit.
+        demo_history.load(users=users, passwords=passwords)
         # The approved jobs' signed wiring records (a demo signing key made on first use).
         wiring_demo.load(jobs=Job.objects.filter(title__in=[row[1] for row in JOBS]))
     return [(username, role, password) for username, _, _, role, password in STAFF]

@@ -54,6 +54,18 @@ class ShopProfile(models.Model):
         default=PaperSize.A4,
         help_text="Paper of the printed wiring record and stage sheets.",
     )
+    recheck_months = models.PositiveSmallIntegerField(
+        "re-check after (months)",
+        default=12,
+        validators=[MinValueValidator(1), MaxValueValidator(60)],
+        help_text="When an approved vehicle is due back for its re-check.",
+    )
+    recheck_months_after_loose = models.PositiveSmallIntegerField(
+        "re-check after found-loose connections (months)",
+        default=6,
+        validators=[MinValueValidator(1), MaxValueValidator(60)],
+        help_text="Sooner due date when the record had connections found loose at retorque.",
+    )
 
     class Meta:
         verbose_name = "shop profile"
@@ -227,6 +239,7 @@ class JobQuerySet(models.QuerySet):
 class Job(models.Model):
     class Status(models.TextChoices):
         BOOKED = "booked", "Booked in"
+        RECHECK = "recheck", "Re-check"
         INSTALL = "install", "First install"
         HEAT_CYCLE = "heat_cycle", "Heat-cycle run"
         RETORQUE = "retorque", "Retorque"
@@ -234,9 +247,24 @@ class Job(models.Model):
         APPROVED = "approved", "Approved"
         HANDED_OVER = "handed_over", "Handed over"
 
+    class Kind(models.TextChoices):
+        BUILD = "build", "Build or rework"
+        RETURN_VISIT = "return_visit", "Return visit"
+
     number = models.CharField(max_length=24, unique=True, editable=False)
     vehicle = models.ForeignKey(Vehicle, on_delete=models.PROTECT, related_name="jobs")
     title = models.CharField(max_length=160)
+    kind = models.CharField(max_length=20, choices=Kind.choices, default=Kind.BUILD)
+    # A return visit re-checks the system of an earlier approved job of this shop (or of
+    # a record read from another shop's PDF, when this is empty).
+    follows = models.ForeignKey(
+        "self",
+        on_delete=models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="return_visits",
+        help_text="The approved job whose record this return visit starts from.",
+    )
     description = models.TextField(blank=True)
     lead = models.ForeignKey(
         settings.AUTH_USER_MODEL,

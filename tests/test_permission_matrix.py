@@ -17,6 +17,7 @@ with their errors (200) and confirmation steps ask again.
 from __future__ import annotations
 
 import importlib
+from pathlib import Path
 
 from django.contrib.auth import get_user_model
 from django.contrib.contenttypes.models import ContentType
@@ -47,26 +48,15 @@ from tests.matrix_admin_rows import (
 
 PERSONAS = ("anon", "tech", "stranger", "lead", "office", "super")
 
-# Rows of the inspections and wiring-record pages, one module per views module
-# (tests/inspections/matrix/, tests/wiring/matrix/):
+# Rows of the feature pages, one module per views module, found in tests/<app>/matrix/
+# (any module there, so a new views module needs only its own rows file):
 # each has ROWS (name -> (GET, POST) as below) and kwargs(world, name) -> the URL's kwargs,
 # where world is the PermissionMatrix test (its job, termination, reading, stage, ...).
+_TESTS = Path(__file__).resolve().parent
 FEATURE_ROWS = tuple(
-    importlib.import_module(module)
-    for module in (
-        *(
-            f"tests.inspections.matrix.{feature}"
-            for feature in ("torque", "heat", "checklists", "office", "signing", "review")
-        ),
-        *(
-            f"tests.wiring.matrix.{feature}"
-            for feature in ("record", "revisions", "owner", "verify")
-        ),
-        *(
-            f"tests.insights.matrix.{feature}"
-            for feature in ("loosening", "wrenches", "technicians", "rules")
-        ),
-    )
+    importlib.import_module(f"tests.{path.parent.parent.name}.matrix.{path.stem}")
+    for path in sorted(_TESTS.glob("*/matrix/*.py"))
+    if path.stem != "__init__"
 )
 
 # name: (GET outcomes, POST outcomes), one per persona in PERSONAS order.

@@ -6,8 +6,10 @@ from __future__ import annotations
 
 from inspections.models.audit import AuditEvent
 from inspections.models.base import AppendOnlyError, AppendOnlyModel, AppendOnlyQuerySet
+from inspections.models.calibration import WrenchCalibration
 from inspections.models.checklists import ChecklistMark, ShopChecklistItem
 from inspections.models.heat import HeatCycleRun, ThermalReading, ThermalWaiver
+from inspections.models.prior import PriorReading, PriorRecord
 from inspections.models.signoffs import SignOff, canonical_json, content_hash
 from inspections.models.stages import Stage
 from inspections.models.torque import TorqueRecord, TorqueRecordQuerySet, TorqueWrench
@@ -20,6 +22,8 @@ __all__ = [
     "ChecklistMark",
     "HeatCycleRun",
     "ShopChecklistItem",
+    "PriorReading",
+    "PriorRecord",
     "SignOff",
     "Stage",
     "ThermalReading",
@@ -27,6 +31,7 @@ __all__ = [
     "TorqueRecord",
     "TorqueRecordQuerySet",
     "TorqueWrench",
+    "WrenchCalibration",
     "canonical_json",
     "content_hash",
 ]

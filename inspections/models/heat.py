@@ -26,6 +26,12 @@ class HeatCycleRun(models.Model):
     )
     notes = models.TextField(blank=True)
     created_at = models.DateTimeField(default=timezone.now, editable=False)
+    # A return visit's re-check runs the system under load for its thermal check, as
+    # found, before any re-tightening: that run signs nothing and starts no soak (the
+    # heat-cycle stage's run, after any re-tightening, does; latest_run leaves these out).
+    recheck = models.BooleanField(
+        "re-check run", default=False, help_text="Run for the re-check's thermal check."
+    )
 
     class Meta:
         ordering = ["job", "ended_at", "pk"]

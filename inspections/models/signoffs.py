@@ -85,6 +85,7 @@ class SignOff(AppendOnlyModel):
     approved."""
 
     class Kind(models.TextChoices):
+        RECHECK = "recheck", "Re-check"
         FIRST_INSTALL = "first_install", "First install"
         RETORQUE = "retorque", "Retorque"
         APPROVAL = "approval", "Approval"
@@ -98,6 +99,7 @@ class SignOff(AppendOnlyModel):
 
     # What each kind's signature means, in plain words (shown above the signing pad).
     MEANINGS = {
+        Kind.RECHECK: "re-checked as found, before any re-tightening",
         Kind.FIRST_INSTALL: "installed and torqued",
         Kind.RETORQUE: "retorqued after heat cycle",
         Kind.APPROVAL: "reviewed and approved",
@@ -140,7 +142,9 @@ class SignOff(AppendOnlyModel):
             models.CheckConstraint(condition=~Q(printed_name=""), name="signoff_printed_name"),
             models.CheckConstraint(condition=~Q(meaning=""), name="signoff_meaning_given"),
             models.CheckConstraint(
-                condition=Q(kind__in=["first_install", "retorque", "approval", "receipt"]),
+                condition=Q(
+                    kind__in=["recheck", "first_install", "retorque", "approval", "receipt"]
+                ),
                 name="signoff_kind_known",
             ),
         ]

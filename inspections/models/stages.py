@@ -11,7 +11,10 @@ class Stage(models.Model):
     change leaves an audit event); the gates of later issues read and move it."""
 
     class Kind(models.IntegerChoices):
-        # Numbers, so that ordering by kind is the order the work happens in.
+        # Numbers, so that ordering by kind is the order the work happens in. A return
+        # visit's re-check (as-found torque and the thermal check, before any
+        # re-tightening) comes before the usual stages for any new work.
+        RECHECK = 0, "Re-check"
         FIRST_INSTALL = 1, "First install"
         HEAT_CYCLE = 2, "Heat-cycle run"
         RETORQUE = 3, "Retorque"
@@ -23,6 +26,12 @@ class Stage(models.Model):
         SIGNED = "signed", "Signed"
         SENT_BACK = "sent_back", "Sent back"
         REOPENED = "reopened", "Reopened"
+        # A return visit with nothing to re-tighten and no new work: the lead marks the
+        # build stages not needed, with a reason (inspections.services.return_visit).
+        NOT_NEEDED = "not_needed", "Not needed"
+
+    # The stages every job has; a return visit adds the re-check before them.
+    BUILD_KINDS = (Kind.FIRST_INSTALL, Kind.HEAT_CYCLE, Kind.RETORQUE, Kind.HANDOVER)
 
     # States in which technicians work on the stage: open, sent back by a lead for more
     # work, or reopened after approval. Signed and not-started stages take no new records.
@@ -42,9 +51,18 @@ class Stage(models.Model):
                 name="stage_one_per_job_and_kind",
                 violation_error_message="This job already has this stage.",
             ),
-            models.CheckConstraint(condition=Q(kind__gte=1, kind__lte=4), name="stage_kind_known"),
+            models.CheckConstraint(condition=Q(kind__gte=0, kind__lte=4), name="stage_kind_known"),
             models.CheckConstraint(
-                condition=Q(state__in=["not_started", "open", "signed", "sent_back", "reopened"]),
+                condition=Q(
+                    state__in=[
+                        "not_started",
+                        "open",
+                        "signed",
+                        "sent_back",
+                        "reopened",
+                        "not_needed",
+                    ]
+                ),
                 name="stage_state_known",
             ),
         ]
@@ -58,4 +76,4 @@ class Stage(models.Model):
 
     @property
     def takes_torque_readings(self) -> bool:
-        return self.kind in (self.Kind.FIRST_INSTALL, self.Kind.RETORQUE)
+        return self.kind in (self.Kind.RECHECK, self.Kind.FIRST_INSTALL, self.Kind.RETORQUE)

@@ -15,6 +15,8 @@ unlocks it), and the owner's receipt (which closes it).
 
 from __future__ import annotations
 
+import datetime
+
 from django.db import transaction
 from django.utils import timezone
 
@@ -25,6 +27,7 @@ from inspections.services.common import (
     audit,
     clean_text,
     locked_stages,
+    not_in_future,
     person,
     raise_if,
     require_perm,
@@ -54,16 +57,21 @@ MAX_REASON = 2000
 
 def _stages_or_error(job, errors: Errors) -> dict[int, Stage]:
     stages = locked_stages(job.pk)
-    if len(stages) < len(Stage.Kind):
+    if not all(kind in stages for kind in Stage.BUILD_KINDS):
         add_error(errors, "job", f"Job {job.number} has no stages yet; open its first install.")
         return {}
     return stages
 
 
-def job_approve(*, job, lead, password: object, signature_png: object) -> SignOff:
-    """The lead reviews and approves the job for handover; the job is locked."""
+def job_approve(
+    *, job, lead, password: object, signature_png: object, at: datetime.datetime | None = None
+) -> SignOff:
+    """The lead reviews and approves the job for handover; the job is locked. `at`: the
+    demo's history only (as inspections.services.signing.stage_sign says)."""
     require_perm(lead, REVIEW_PERM, "Only a lead approves a job for handover.")
     errors: Errors = {}
+    if at is not None:
+        not_in_future(at, field="at", what="time of the approval", errors=errors)
     check_own_password(lead, password, errors, doing="job_approve")
     signature = clean_signature(signature_png, errors)
     with transaction.atomic():
@@ -86,10 +94,12 @@ def job_approve(*, job, lead, password: object, signature_png: object) -> SignOf
             printed_name=person(lead)[:120],
             meaning=SignOff.MEANINGS[SignOff.Kind.APPROVAL],
             signature=signature,
+            at=at,
         )
         set_state(handover, Stage.State.SIGNED)
         status = job_status_sync(job=job)
         audit(
+            at=at,
             job=job,
             kind=AuditEvent.Kind.APPROVAL,
             actor=lead,
@@ -148,10 +158,15 @@ def job_reopen(*, job, lead, reason: str) -> Stage:
     return handover
 
 
-def handover_receive(*, job, printed_name: str, signature_png: object, by=None) -> SignOff:
+def handover_receive(
+    *, job, printed_name: str, signature_png: object, by=None, at: datetime.datetime | None = None
+) -> SignOff:
     """The owner signs for receipt of the approved record; the job is handed over.
-    `by` is the staff member handing over (the trail names them beside the owner)."""
+    `by` is the staff member handing over (the trail names them beside the owner); `at`
+    the demo's history only."""
     errors: Errors = {}
+    if at is not None:
+        not_in_future(at, field="at", what="time of the receipt", errors=errors)
     name = clean_text(printed_name, field="printed_name", what="name", limit=120, errors=errors)
     if len(name) < 2:
         add_error(errors, "printed_name", "Type your name as you sign.")
@@ -193,10 +208,12 @@ def handover_receive(*, job, printed_name: str, signature_png: object, by=None) 
             printed_name=name,
             meaning=SignOff.MEANINGS[SignOff.Kind.RECEIPT],
             signature=signature,
+            at=at,
         )
         status_before = job.status
         status = job_status_sync(job=job)
         audit(
+            at=at,
             job=job,
             kind=AuditEvent.Kind.RECEIVED,
             actor=by if getattr(by, "is_authenticated", False) else None,

@@ -123,7 +123,15 @@ def heat_cycle_log(
     )
     notes = clean_text(notes, field="notes", what="notes", limit=MAX_NOTES, errors=errors)
     with transaction.atomic():
-        heat = _working_stage(job, (Stage.Kind.HEAT_CYCLE,), errors, doing="A run is logged")
+        # A return visit's open re-check takes the run for its thermal check (as found):
+        # it signs nothing and starts no soak.
+        recheck = (
+            Stage.objects.filter(job=job, kind=Stage.Kind.RECHECK)
+            .filter(state__in=Stage.WORKING_STATES)
+            .exists()
+        )
+        kinds = (Stage.Kind.RECHECK,) if recheck else (Stage.Kind.HEAT_CYCLE,)
+        heat = _working_stage(job, kinds, errors, doing="A run is logged")
         check_unlocked(job, errors)
         raise_if(errors)
         run = HeatCycleRun.objects.create(
@@ -134,6 +142,7 @@ def heat_cycle_log(
             ambient_c=ambient,
             logged_by=by,
             notes=notes,
+            recheck=recheck,
         )
         local_end = timezone.localtime(end)
         audit(
@@ -141,7 +150,8 @@ def heat_cycle_log(
             kind=AuditEvent.Kind.RUN_LOGGED,
             actor=by,
             summary=(
-                f"Heat-cycle run {timezone.localtime(start):%d %b %H:%M}–{local_end:%H:%M},"
+                f"{'Re-check run' if recheck else 'Heat-cycle run'}"
+                f" {timezone.localtime(start):%d %b %H:%M}–{local_end:%H:%M},"
                 f" peak {format_number(peak, 1)} A, ambient {format_number(ambient, 1)} °C"
             ),
             after={
@@ -153,7 +163,8 @@ def heat_cycle_log(
             },
             subject=run,
         )
-        _sign_by_logging(heat, run, by)
+        if not recheck:
+            _sign_by_logging(heat, run, by)
     return run
 
 
@@ -251,7 +262,7 @@ def thermal_reading_create(
                 add_error(errors, "at", "A temperature after a run is taken after it started.")
         _working_stage(
             run.job,
-            (Stage.Kind.HEAT_CYCLE, Stage.Kind.RETORQUE),
+            (Stage.Kind.RECHECK,) if run.recheck else (Stage.Kind.HEAT_CYCLE, Stage.Kind.RETORQUE),
             errors,
             doing="Temperatures are taken",
         )

@@ -40,6 +40,7 @@ class TorqueProgress:
     out_of_tolerance: int
     found_loose: int
     show_found_loose: bool
+    loose_words: str = "found loose"
 
     @property
     def complete(self) -> bool:
@@ -52,7 +53,7 @@ class TorqueProgress:
             f"{self.out_of_tolerance} out of tolerance",
         ]
         if self.show_found_loose:
-            parts.append(f"{self.found_loose} found loose")
+            parts.append(f"{self.found_loose} {self.loose_words}")
         return ", ".join(parts)
 
 
@@ -71,17 +72,28 @@ def torque_progress(stage: Stage) -> TorqueProgress:
         .filter(stage=stage, found_loose=True)
         .values_list("termination_id", flat=True)
     )
+    if stage.kind == Stage.Kind.RECHECK:
+        # As found, below the band is loose again too (the fastener had backed off).
+        loose |= {pk for pk, r in current.items() if r.result == TorqueRecord.Result.LOW}
     return TorqueProgress(
         total=len(ids),
         read=len(current),
         out_of_tolerance=sum(1 for r in current.values() if not r.within_tolerance),
         found_loose=len(loose & ids),
-        show_found_loose=stage.kind == Stage.Kind.RETORQUE,
+        show_found_loose=stage.kind in (Stage.Kind.RETORQUE, Stage.Kind.RECHECK),
+        loose_words="found loose again" if stage.kind == Stage.Kind.RECHECK else "found loose",
     )
 
 
 def latest_run(job) -> HeatCycleRun | None:
-    return HeatCycleRun.objects.filter(job=job).order_by("-ended_at", "-pk").first()
+    """The latest heat-cycle run (a return visit's re-check run is not one: it signs
+    nothing and starts no soak)."""
+    return HeatCycleRun.objects.filter(job=job, recheck=False).order_by("-ended_at", "-pk").first()
+
+
+def recheck_run(job) -> HeatCycleRun | None:
+    """The latest run logged for a return visit's re-check thermal check."""
+    return HeatCycleRun.objects.filter(job=job, recheck=True).order_by("-ended_at", "-pk").first()
 
 
 def soak_ends_at(job) -> datetime.datetime | None:
@@ -148,13 +160,15 @@ def _device_of(termination: Termination) -> int:
     )
 
 
-def thermal_results(job) -> dict[int, ThermalResult]:
+def thermal_results(job, *, recheck: bool = False) -> dict[int, ThermalResult]:
     """termination id -> its latest temperature reading, classed against its run's
     ambient and the other connections on the same device read on that run under similar
-    load (inspections.thermal)."""
+    load (inspections.thermal). The heat-cycle runs' readings, or with `recheck` those of
+    a return visit's re-check runs (as found, kept apart: they neither block the
+    retorque nor count as read cooler after re-making)."""
     readings = (
-        ThermalReading.objects.filter(run__job=job)
-        .select_related("run", "termination__circuit")
+        ThermalReading.objects.filter(run__job=job, run__recheck=recheck)
+        .select_related("run", "termination__circuit", "taken_by")  # the record names the taker
         .order_by("taken_at", "pk")
     )
     per_run: dict[int, dict[int, ThermalReading]] = {}

@@ -21,14 +21,18 @@ from inspections.services.queries import (
 from shop.models import Job
 
 # The stages whose work the lead reviews (the heat-cycle run is its logged run).
-WORK_KINDS = (Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE)
+# A return visit's re-check is reviewed too: what was found loose again is in its readings.
+WORK_KINDS = (Stage.Kind.RECHECK, Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE)
 
 
 def jobs_awaiting_review() -> QuerySet[Job]:
     """Jobs whose retorque is signed and whose handover is not yet approved, the one
     waiting longest first (by when its retorque was last signed)."""
+    # A return visit whose build stages a lead marked not needed waits on its re-check.
     retorque_signed = Stage.objects.filter(
-        job=OuterRef("pk"), kind=Stage.Kind.RETORQUE, state=Stage.State.SIGNED
+        job=OuterRef("pk"),
+        kind=Stage.Kind.RETORQUE,
+        state__in=(Stage.State.SIGNED, Stage.State.NOT_NEEDED),
     )
     approved = Stage.objects.filter(
         job=OuterRef("pk"), kind=Stage.Kind.HANDOVER, state=Stage.State.SIGNED

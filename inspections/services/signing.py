@@ -2,6 +2,9 @@
 
 How the stages move (each move leaves an audit event, and the job's status follows):
 
+    re-check        open ──sign──▶ signed            (a return visit's: opens the first
+                                                      install; inspections.services.
+                                                      return_visit)
     first install   open ──sign──▶ signed            (opens the heat-cycle run)
     heat-cycle run  open ──log the run──▶ signed     (opens the retorque; soak follows)
     retorque        open ──sign──▶ signed            (opens the handover)
@@ -16,6 +19,8 @@ records stay, but a retorque counts only readings after the latest run's soak).
 
 from __future__ import annotations
 
+import datetime
+
 from django.core.exceptions import ValidationError
 from django.db import transaction
 from django.utils import timezone
@@ -27,6 +32,7 @@ from inspections.services.common import (
     audit,
     clean_text,
     locked_stages,
+    not_in_future,
     person,
     raise_if,
     require_perm,
@@ -122,10 +128,19 @@ def open_next(
 
 
 def create_signoff(
-    *, stage: Stage, kind: str, signer, role: str, printed_name: str, meaning: str, signature: bytes
+    *,
+    stage: Stage,
+    kind: str,
+    signer,
+    role: str,
+    printed_name: str,
+    meaning: str,
+    signature: bytes,
+    at: datetime.datetime | None = None,
 ) -> SignOff:
     content = signoff_content(stage=stage)
     return SignOff.objects.create(
+        signed_at=at or timezone.now(),
         job=stage.job,
         stage=stage,
         kind=kind,
@@ -140,13 +155,24 @@ def create_signoff(
 
 
 def stage_sign(
-    *, stage: Stage, user, password: object, signature_png: object, meaning: str | None = None
+    *,
+    stage: Stage,
+    user,
+    password: object,
+    signature_png: object,
+    meaning: str | None = None,
+    at: datetime.datetime | None = None,
 ) -> SignOff:
-    """Sign the first install or the retorque: the signer's own password, their role and
-    assignment, a real drawn signature, and the stage's gate (inspections.services.gates),
-    every unmet condition listed in one ValidationError. Opens the next stage."""
+    """Sign a return visit's re-check, the first install or the retorque: the signer's
+    own password, their role and assignment, a real drawn signature, and the stage's gate
+    (inspections.services.gates), every unmet condition listed in one ValidationError.
+    Opens the next stage. `at` is for the history the demo loads in the past only (the
+    pages never pass it: a signature made on a page is stamped with the moment it is
+    made); it may not lie in the future."""
     require_perm(user, SIGN_PERM, "Only technicians and leads sign a stage.")
     errors: Errors = {}
+    if at is not None:
+        not_in_future(at, field="at", what="time of the signature", errors=errors)
     check_own_password(user, password, errors, doing="stage_sign")
     signature = clean_signature(signature_png, errors)
     with transaction.atomic():
@@ -189,9 +215,11 @@ def stage_sign(
             printed_name=person(user)[:120],
             meaning=meaning,
             signature=signature,
+            at=at,
         )
         before = set_state(stage, Stage.State.SIGNED)
         audit(
+            at=at,
             job=job,
             kind=AuditEvent.Kind.STAGE_SIGNED,
             actor=user,

@@ -14,6 +14,8 @@ The content of each stage (every value a string, integer, boolean or null; times
   to clear), plus the heat-cycle run the soak counted from and the latest temperature of
   each connection read after it (class, whether it blocks, the waiver of it).
 * heat-cycle run: the run and the temperatures (the stage is signed by logging its run).
+* re-check (a return visit's): as the first install (terminations, torque as found,
+  checklist), plus the re-check run and the temperatures read on it.
 * handover (the lead's approval and the owner's receipt): the hash of the first install
   and retorque contents as they are now, the sign-offs in force for them, the run and the
   blocking findings. Approval and receipt hash the same content: a receipt whose hash
@@ -34,17 +36,24 @@ from circuits.models import Termination
 from circuits.system import job_system_report
 from inspections.models import SignOff, Stage, content_hash
 from inspections.services.checklists import checklist_items_for
-from inspections.services.queries import current_readings, latest_run, thermal_results
+from inspections.services.queries import (
+    current_readings,
+    latest_run,
+    recheck_run,
+    thermal_results,
+)
 from inspections.services.queries import thermal_waivers as waivers_of_readings
 
 SCHEMA = 1
 SLUGS = {
+    Stage.Kind.RECHECK: "recheck",
     Stage.Kind.FIRST_INSTALL: "first_install",
     Stage.Kind.HEAT_CYCLE: "heat_cycle",
     Stage.Kind.RETORQUE: "retorque",
     Stage.Kind.HANDOVER: "handover",
 }
 STAGE_SIGNOFF_KINDS = {
+    Stage.Kind.RECHECK: SignOff.Kind.RECHECK,
     Stage.Kind.FIRST_INSTALL: SignOff.Kind.FIRST_INSTALL,
     Stage.Kind.RETORQUE: SignOff.Kind.RETORQUE,
 }
@@ -148,10 +157,24 @@ def _run(job) -> dict | None:
     }
 
 
-def _thermal(job) -> list[dict]:
+def _recheck_run(job) -> dict | None:
+    run = recheck_run(job)
+    if run is None:
+        return None
+    return {
+        "id": run.pk,
+        "started_at": when(run.started_at),
+        "ended_at": when(run.ended_at),
+        "peak_current_a": str(run.peak_current_a),
+        "ambient_c": str(run.ambient_c),
+        "logged_by": run.logged_by_id,
+    }
+
+
+def _thermal(job, *, recheck: bool = False) -> list[dict]:
     waivers = waivers_of_readings(job)
     entries = []
-    for termination_id, result in sorted(thermal_results(job).items()):
+    for termination_id, result in sorted(thermal_results(job, recheck=recheck).items()):
         waiver = waivers.get(result.reading.pk)
         entries.append(
             {
@@ -187,6 +210,9 @@ def signoff_content(*, stage: Stage) -> dict:
         content["checklist"] = _checklist(stage)
     if stage.kind == Stage.Kind.FIRST_INSTALL:
         content["findings"] = _findings(job)
+    if stage.kind == Stage.Kind.RECHECK:
+        content["recheck_run"] = _recheck_run(job)
+        content["thermal"] = _thermal(job, recheck=True)
     if stage.kind in (Stage.Kind.HEAT_CYCLE, Stage.Kind.RETORQUE, Stage.Kind.HANDOVER):
         content["heat_cycle"] = _run(job)
     if stage.kind in (Stage.Kind.HEAT_CYCLE, Stage.Kind.RETORQUE):
@@ -195,7 +221,14 @@ def signoff_content(*, stage: Stage) -> dict:
         stages = {s.kind: s for s in Stage.objects.filter(job=job).select_related("job")}
         covered: dict = {}
         signed: dict = {}
+        # Only the stages the job has (a build job has no re-check, so its content is
+        # as it always was); a build stage marked not needed is named as such.
+        not_needed = []
         for kind in STAGE_SIGNOFF_KINDS:
+            if kind not in stages:
+                continue
+            if stages[kind].state == Stage.State.NOT_NEEDED:
+                not_needed.append(SLUGS[kind])
             covered[SLUGS[kind]] = content_hash(signoff_content(stage=stages[kind]))
             in_force = signoff_in_force(stages[kind])
             signed[SLUGS[kind]] = (
@@ -205,6 +238,8 @@ def signoff_content(*, stage: Stage) -> dict:
             )
         content["stages"] = covered
         content["signoffs"] = signed
+        if not_needed:
+            content["not_needed"] = not_needed
         content["findings"] = _findings(job)
     return content
 

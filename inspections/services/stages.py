@@ -1,4 +1,4 @@
-"""A job's four stages."""
+"""A job's four stages (five on a return visit: the re-check first)."""
 
 from __future__ import annotations
 
@@ -7,6 +7,7 @@ from django.utils import timezone
 
 from inspections.models import Stage
 from inspections.services.status import job_status_sync
+from shop.models import Job
 
 
 def stages_ensure(*, job) -> list[Stage]:
@@ -18,18 +19,22 @@ def stages_ensure(*, job) -> list[Stage]:
     and an event would make the job undeletable (its trail is PROTECTed) before any
     work was recorded on it. The job's status follows (booked becomes first install)."""
     now = timezone.now()
+    # A return visit opens with its re-check (as found, before any re-tightening); the
+    # build stages wait for it to be signed.
+    kinds: tuple = Stage.BUILD_KINDS
+    first = Stage.Kind.FIRST_INSTALL
+    if getattr(job, "kind", None) == Job.Kind.RETURN_VISIT:
+        kinds, first = (Stage.Kind.RECHECK, *Stage.BUILD_KINDS), Stage.Kind.RECHECK
     with transaction.atomic():
         Stage.objects.bulk_create(
             [
                 Stage(
                     job=job,
                     kind=kind,
-                    state=Stage.State.OPEN
-                    if kind == Stage.Kind.FIRST_INSTALL
-                    else Stage.State.NOT_STARTED,
-                    opened_at=now if kind == Stage.Kind.FIRST_INSTALL else None,
+                    state=Stage.State.OPEN if kind == first else Stage.State.NOT_STARTED,
+                    opened_at=now if kind == first else None,
                 )
-                for kind in Stage.Kind
+                for kind in kinds
             ],
             ignore_conflicts=True,
         )

@@ -4,12 +4,17 @@ Status (shop.models.Job.status) is never set by hand: every service that moves a
 calls `job_status_sync` in its transaction, which derives the status from the stages:
 
     no stages yet, or first install not started        booked
+    re-check open / sent back (return visits only)      recheck
     first install open / sent back / reopened           install
     first install signed, heat-cycle not yet run        heat_cycle
     run logged, retorque open (soak included)           retorque
     retorque signed, awaiting the lead's approval       handover  ("Awaiting approval")
     approved (handover stage signed)                    approved
     approved and the owner has signed for receipt       handed_over
+
+A return visit's build stages marked "not needed" (nothing to re-tighten, no new work)
+are passed over like signed ones; the first install of a return visit not yet started
+after a signed re-check is "first install" (the re-tightening and new work come next).
 
 The lock: a job is locked while its handover stage is signed (the lead's approval) until
 a lead reopens it. Every inspections write refuses while locked (`check_unlocked`).
@@ -24,6 +29,7 @@ from inspections.services.common import Errors, add_error
 from shop.models import Job
 
 _STATUS_OF_OPEN_STAGE = {
+    Stage.Kind.RECHECK: Job.Status.RECHECK,
     Stage.Kind.FIRST_INSTALL: Job.Status.INSTALL,
     Stage.Kind.HEAT_CYCLE: Job.Status.HEAT_CYCLE,
     Stage.Kind.RETORQUE: Job.Status.RETORQUE,
@@ -63,9 +69,17 @@ def job_status_for(job) -> str:
         return Job.Status.HANDED_OVER if receipt_in_force(job) else Job.Status.APPROVED
     for kind in Stage.Kind:
         stage = stages.get(kind)
+        if kind not in Stage.BUILD_KINDS and stage is None:
+            continue  # a re-check stage only on return visits
+        if stage is not None and stage.state == Stage.State.NOT_NEEDED:
+            continue  # a return visit's build stage the lead marked not needed
         if stage is None or stage.state != Stage.State.SIGNED:
-            if kind == Stage.Kind.FIRST_INSTALL and (
-                stage is None or stage.state == Stage.State.NOT_STARTED
+            if kind == Stage.Kind.RECHECK and stage.state == Stage.State.NOT_STARTED:
+                return Job.Status.BOOKED
+            if (
+                kind == Stage.Kind.FIRST_INSTALL
+                and (stage is None or stage.state == Stage.State.NOT_STARTED)
+                and Stage.Kind.RECHECK not in stages
             ):
                 return Job.Status.BOOKED
             return _STATUS_OF_OPEN_STAGE[kind]

@@ -114,7 +114,8 @@ def _check_stage(stage: Stage, *, found_loose: bool, errors: Errors) -> None:
         add_error(
             errors,
             "stage",
-            f"Torque readings are taken at first install and at retorque, not at {name}.",
+            "Torque readings are taken at the re-check, at first install and at retorque,"
+            f" not at {name}.",
         )
     elif not stage.accepts_work:
         if stage.state == Stage.State.SIGNED:
@@ -129,12 +130,35 @@ def _check_stage(stage: Stage, *, found_loose: bool, errors: Errors) -> None:
             f"The {name} stage is {stage.get_state_display().lower()}; readings are taken only"
             f" while it is open{why}.",
         )
-    if found_loose and stage.kind != Stage.Kind.RETORQUE:
+    if found_loose and stage.kind not in (Stage.Kind.RETORQUE, Stage.Kind.RECHECK):
         add_error(
             errors,
             "found_loose",
-            "'Found loose' is recorded at retorque only, when a fastener turns before the"
-            " wrench clicks.",
+            "'Found loose' is recorded at retorque only (and at a return visit's re-check),"
+            " when a fastener turns before the wrench clicks.",
+        )
+
+
+def _check_as_found_once(termination: Termination, stage: Stage, errors: Errors) -> None:
+    """At a re-check the reading is the connection as found. A second reading of the same
+    end there would be a reading after re-tightening and would hide what was found: it is
+    refused. A mistyped entry is put right by a correction (which keeps its time); the
+    re-tightening is recorded at first install, which opens once the re-check is signed."""
+    if stage.kind != Stage.Kind.RECHECK:
+        return
+    found = (
+        TorqueRecord.objects.current()
+        .filter(stage=stage, termination=termination)
+        .order_by("recorded_at", "pk")
+        .first()
+    )
+    if found is not None:
+        add_error(
+            errors,
+            "termination",
+            f"{termination} was already read as found at the re-check ({found.value_display},"
+            f" {found.get_result_display().lower()}); it is read once there, before any"
+            " re-tightening. Correct a wrong entry instead; re-tighten it at first install.",
         )
 
 
@@ -296,6 +320,7 @@ def torque_record_create(
         stage = shared_stage(stage.pk)
         _check_stage(stage, found_loose=found_loose, errors=errors)
         _check_termination(termination, stage, errors)
+        _check_as_found_once(termination, stage, errors)
         check_unlocked(stage.job, errors)
         if moment is not None and stage.accepts_work:
             check_soak(stage, at=moment, errors=errors)

@@ -122,15 +122,22 @@ def heat_cycle_log(request: HttpRequest, number: str) -> HttpResponse:
         except ValidationError as exc:
             merge_errors(form, error_dict(exc))
         else:
-            ends = timezone.localtime(services.soak_ends_at(job))
+            ends = services.soak_ends_at(job)
+            if _recheck_open(_stages(job)) or ends is None:
+                messages.success(
+                    request, "Re-check run logged; take each connection's temperature now."
+                )
+                return redirect("thermal_readings", number=job.number)
             messages.success(
                 request,
                 f"Heat-cycle run logged; the retorque begins after the soak, at"
-                f" {ends:%d %b %H:%M}.",
+                f" {timezone.localtime(ends):%d %b %H:%M}.",
             )
             return redirect("heat_cycle_log", number=job.number)
     stages = _stages(job)
-    heat = stages.get(Stage.Kind.HEAT_CYCLE)
+    # A return visit's open re-check takes the run for its thermal check (as found).
+    recheck = _recheck_open(stages)
+    heat = recheck or stages.get(Stage.Kind.HEAT_CYCLE)
     access = job_access(request.user, job, request)
     can_log = (
         heat is not None
@@ -145,7 +152,15 @@ def heat_cycle_log(request: HttpRequest, number: str) -> HttpResponse:
         "heat": heat,
         "retorque": stages.get(Stage.Kind.RETORQUE),
         "can_log": can_log,
-        "soak": soak_for(job),
+        "recheck": recheck,
+        "soak": Soak(
+            run=services.recheck_run(job),
+            ends_at=None,
+            remaining=None,
+            minutes=ShopProfile.load().soak_minutes,
+        )
+        if recheck
+        else soak_for(job),
         "runs": HeatCycleRun.objects.filter(job=job).count(),
     }
     return render(request, "inspections/heat_cycle.html", context, status=200)
@@ -252,8 +267,15 @@ def _save_temperatures(request, run, terminations) -> tuple[dict[int, list[str]]
     return per_row, general, len(entries)
 
 
+def _recheck_open(stages: dict[int, Stage]) -> Stage | None:
+    """A return visit's re-check while it takes work (its run and temperatures are as
+    found, kept apart from the heat cycle's)."""
+    stage = stages.get(Stage.Kind.RECHECK)
+    return stage if stage is not None and stage.accepts_work else None
+
+
 def _work_stage(stages: dict[int, Stage]) -> Stage | None:
-    for kind in (Stage.Kind.HEAT_CYCLE, Stage.Kind.RETORQUE):
+    for kind in (Stage.Kind.RECHECK, Stage.Kind.HEAT_CYCLE, Stage.Kind.RETORQUE):
         stage = stages.get(kind)
         if stage is not None and stage.accepts_work:
             return stage
@@ -269,7 +291,8 @@ def thermal_readings(request: HttpRequest, number: str) -> HttpResponse:
     job = _get_job_for_user(
         request.user, number, perm=THERMAL_PERM if posting else THERMAL_VIEW, write=posting
     )
-    run = services.latest_run(job)
+    recheck = _recheck_open(_stages(job)) is not None
+    run = services.recheck_run(job) if recheck else services.latest_run(job)
     groups = _terminations_by_device(job)
     terminations = [t for _, ts in groups for t in ts]
     per_row: dict[int, list[str]] = {}
@@ -279,8 +302,14 @@ def thermal_readings(request: HttpRequest, number: str) -> HttpResponse:
         if not per_row and not general:
             messages.success(request, f"{stored} temperature{'' if stored == 1 else 's'} saved.")
             return redirect("thermal_readings", number=job.number)
-    results = services.thermal_results(job)
-    unwaived = {r.reading.pk for r in services.thermal_unwaived(job)}
+    results = services.thermal_results(job, recheck=recheck)
+    # Hot at a re-check is a finding (the connection is re-made at first install), not
+    # something to waive; every hot one is shown as blocking the build stages' skip.
+    unwaived = (
+        {r.reading.pk for r in results.values() if r.blocks_retorque}
+        if recheck
+        else {r.reading.pk for r in services.thermal_unwaived(job)}
+    )
     rows = []
     for device, device_terminations in groups:
         device_rows = []
@@ -315,7 +344,8 @@ def thermal_readings(request: HttpRequest, number: str) -> HttpResponse:
             and access.may_edit
             and request.user.has_perm(THERMAL_PERM)
         ),
-        "may_waive": request.user.has_perm(WAIVE_PERM) and access.may_edit,
+        "may_waive": request.user.has_perm(WAIVE_PERM) and access.may_edit and not recheck,
+        "recheck": recheck,
         "read": sum(1 for row in flat if row.result is not None),
         "blocking": sum(1 for row in flat if row.blocks),
         "waived": sum(1 for row in flat if row.waived),

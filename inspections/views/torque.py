@@ -23,6 +23,7 @@ from django.views.decorators.http import require_GET, require_http_methods, requ
 from circuits.models import Circuit, Termination
 from inspections import services
 from inspections.models import Stage, TorqueRecord, TorqueWrench
+from inspections.services.return_visit import last_readings
 from inspections.services.walking import ORDER_PERM, device_move, devices_in_walking_order
 from inspections.units import format_number, to_nm
 from inspections.views import torque_rows as rows
@@ -109,6 +110,7 @@ def _entry_context(
     after = rows.next_unread(job, stage, termination.pk) if stage is not None else None
     saved = saved or _saved(job, request.GET.get("saved"))
     errors = errors or {}
+    last = last_readings(job) if job.kind == Job.Kind.RETURN_VISIT else {}
     return {
         "job": job,
         "termination": termination,
@@ -143,6 +145,7 @@ def _entry_context(
         "errors": errors,
         "general_errors": _general(errors),
         "access": job_access(request.user, job, request),
+        "last_words": rows.Row(termination, None, False, last=last.get(termination.pk)).last_words,
     }
 
 
@@ -268,7 +271,7 @@ def torque_correct(request: HttpRequest, number: str, pk: int) -> HttpResponse:
                 client_key=posted.get("client_key", ""),
                 found_loose=(
                     posted.get("found_loose") == "on"
-                    if record.stage.kind == Stage.Kind.RETORQUE
+                    if record.stage.kind in (Stage.Kind.RETORQUE, Stage.Kind.RECHECK)
                     else None
                 ),
                 note=posted.get("note", ""),
@@ -293,7 +296,7 @@ def torque_correct(request: HttpRequest, number: str, pk: int) -> HttpResponse:
         "reason": posted.get("reason", ""),
         "note": posted.get("note", ""),
         "found_loose": (posted.get("found_loose") == "on" if posted else record.found_loose),
-        "retorque": record.stage.kind == Stage.Kind.RETORQUE,
+        "retorque": record.stage.kind in (Stage.Kind.RETORQUE, Stage.Kind.RECHECK),
         "result_words": rows.result_words(record),
         "client_key": str(uuid.uuid4()),
         "errors": errors,

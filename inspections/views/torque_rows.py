@@ -11,11 +11,13 @@ from django.utils import timezone
 
 from circuits.models import Termination, TorqueUnit
 from inspections import services
-from inspections.models import Stage, TorqueRecord, TorqueWrench
+from inspections.models import PriorReading, Stage, TorqueRecord, TorqueWrench
+from inspections.services.return_visit import last_readings
 from inspections.services.walking import devices_in_walking_order
 from inspections.units import format_number, format_torque, from_nm, nm_per_unit, to_nm
+from shop.models import Job
 
-TORQUE_KINDS = (Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE)
+TORQUE_KINDS = (Stage.Kind.RECHECK, Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE)
 NUL_MESSAGE = "This text contains a character that cannot be stored (NUL); type it again."
 
 
@@ -31,9 +33,10 @@ def nul_errors(data, fields: tuple[str, ...]) -> dict[str, list[str]]:
 
 def torque_stage(job) -> Stage | None:
     """The stage that takes torque readings now: the retorque once it is open (its soak
-    included), else the first install while it is open, sent back or reopened."""
+    included), else the first install while it is open, sent back or reopened, else a
+    return visit's re-check."""
     stages = {s.kind: s for s in Stage.objects.filter(job=job, kind__in=TORQUE_KINDS)}
-    for kind in (Stage.Kind.RETORQUE, Stage.Kind.FIRST_INSTALL):
+    for kind in (Stage.Kind.RETORQUE, Stage.Kind.FIRST_INSTALL, Stage.Kind.RECHECK):
         stage = stages.get(kind)
         if stage is not None and stage.accepts_work:
             return stage
@@ -76,6 +79,8 @@ class Row:
     termination: Termination
     reading: TorqueRecord | None
     found_loose: bool
+    last: PriorReading | None = None  # a return visit: the last record's final reading
+    as_found: bool = False  # the reading is a re-check's (as found)
 
     @property
     def state(self) -> str:
@@ -95,7 +100,30 @@ class Row:
         }[self.state]
         if self.reading is not None:
             words = f"{words}: {self.reading.value_display}"
+        if self.loose_again:
+            return f"{words} · found loose again"
         return f"{words} · found loose" if self.found_loose else words
+
+    @property
+    def loose_again(self) -> bool:
+        """At a re-check: found loose again (turned before the click, or read below the
+        spec's band as found), the most telling fact of a return visit."""
+        return self.as_found and (
+            self.found_loose
+            or (self.reading is not None and self.reading.result == TorqueRecord.Result.LOW)
+        )
+
+    @property
+    def last_words(self) -> str:
+        """ "Last: 9.8 N·m at retorque, TW-02, 12 Mar 2026 · found loose" ("" if none)."""
+        last = self.last
+        if last is None:
+            return ""
+        day = f", {timezone.localtime(last.recorded_at):%d %b %Y}" if last.recorded_at else ""
+        wrench = f", {last.wrench}" if last.wrench else ""
+        loose = " · found loose then" if last.found_loose else ""
+        value = format_torque(last.value, last.unit)
+        return f"Last: {value} at {last.pass_name}{wrench}{day}{loose}"
 
     @property
     def spec(self) -> str:
@@ -114,8 +142,11 @@ class DeviceGroup:
 
 def work_groups(job, stage: Stage | None) -> list[DeviceGroup]:
     """The job's terminations grouped by the device they land on, devices in walking
-    order, each termination with its current reading at `stage`."""
+    order, each termination with its current reading at `stage` (and, on a return visit,
+    the last record's final reading of it)."""
     current = services.current_readings(stage) if stage is not None else {}
+    last = last_readings(job) if job.kind == Job.Kind.RETURN_VISIT else {}
+    as_found = stage is not None and stage.kind == Stage.Kind.RECHECK
     loose = set()
     if stage is not None:
         loose = set(
@@ -137,7 +168,13 @@ def work_groups(job, stage: Stage | None) -> list[DeviceGroup]:
             else circuit.to_device_id
         )
         groups[device_id].rows.append(
-            Row(termination, current.get(termination.pk), termination.pk in loose)
+            Row(
+                termination,
+                current.get(termination.pk),
+                termination.pk in loose,
+                last=last.get(termination.pk),
+                as_found=as_found,
+            )
         )
     return [group for group in groups.values() if group.rows]
 

@@ -36,6 +36,9 @@ RESULT_CODES = {
 }
 
 
+UNSTORABLE = "This text contains a character that cannot be stored; type it again."
+
+
 class Malformed(Exception):
     pass
 
@@ -69,7 +72,8 @@ def _parse(request: HttpRequest) -> list[dict]:
         raise Malformed("Send the readings as application/json.")
     try:
         body = json.loads(request.body.decode("utf-8"))
-    except (UnicodeDecodeError, ValueError):
+    except (UnicodeDecodeError, ValueError, RecursionError):
+        # RecursionError: arrays nested thousands deep exhaust the decoder's stack.
         raise Malformed("The request is not valid JSON.") from None
     if not isinstance(body, dict) or not isinstance(body.get("readings"), list):
         raise Malformed('The request must be {"readings": [...]}.')
@@ -93,6 +97,14 @@ def _refused(key: str, errors: dict[str, list[str]]) -> dict:
 def _store(job, reading: dict, user) -> dict:
     key = reading["key"]
     nul = rows.nul_errors(reading, ("key", "value", "unit", "note"))
+    # JSON may escape a lone UTF-16 surrogate ("\ud800"), which no database can store.
+    nul.update(
+        (name, [UNSTORABLE])
+        for name in ("key", "value", "unit", "note")
+        if isinstance(reading.get(name), str)
+        and not reading[name].isascii()
+        and any("\ud800" <= ch <= "\udfff" for ch in reading[name])
+    )
     if nul:
         return _refused(key, nul)
     termination = (

@@ -40,7 +40,9 @@ STATE_WORDS = {
     Stage.State.SIGNED: "done",
     Stage.State.SENT_BACK: "sent back",
     Stage.State.REOPENED: "reopened",
+    Stage.State.NOT_NEEDED: "not needed",
 }
+BOOK_PERM = "shop.add_job"
 
 
 @dataclass(frozen=True)
@@ -102,7 +104,7 @@ def stage_panel(job: Job, user, access: JobAccess, *, now=None) -> StagePanel:
     current = panel.current = _current(stages)
     works = access.may_edit
     panel.run = latest_run(job)
-    if current.kind in (Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE):
+    if current.takes_torque_readings:
         panel.progress = torque_progress(current)
     if current.state == Stage.State.SENT_BACK:
         panel.sent_back_note = send_back_note(current)
@@ -127,8 +129,8 @@ def _carry_on(panel: StagePanel, job: Job, user, works: bool, *, receives: bool)
         if panel.handed_over is None and receives:
             panel.carry_on = Action("Owner signs for receipt", _url("handover_receipt", job))
         return
-    if kind in (Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE):
-        name = "first install" if kind == Stage.Kind.FIRST_INSTALL else "retorque"
+    if kind in (Stage.Kind.RECHECK, Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE):
+        name = current.get_kind_display().lower()
         if works and user.has_perm(READINGS_PERM):
             panel.carry_on = Action(f"Carry on with the {name}", _url("stage_work", job))
         else:
@@ -147,6 +149,8 @@ def _carry_on(panel: StagePanel, job: Job, user, works: bool, *, receives: bool)
 def _secondary(panel: StagePanel, job: Job, user, works: bool) -> None:
     current, actions = panel.current, panel.actions
     if panel.locked:
+        if user.has_perm(BOOK_PERM):
+            actions.append(Action("Book a return visit", _url("return_visit_book", job)))
         if user.has_perm(REOPEN_PERM):
             actions.append(Action("Reopen the job", _url("job_reopen", job)))
     elif current.takes_torque_readings:
@@ -158,6 +162,19 @@ def _secondary(panel: StagePanel, job: Job, user, works: bool) -> None:
             actions.append(
                 Action("Sign this stage", _url("stage_sign", job, kind=int(current.kind)))
             )
+        # A return visit: the re-check's run under load for its thermal check; after a
+        # signed re-check that found nothing, the lead may mark the build not needed.
+        if current.kind == Stage.Kind.RECHECK and works and user.has_perm(RUN_PERM):
+            actions.append(Action("Re-check run and temperatures", _url("heat_cycle_log", job)))
+        recheck = next((s for s in panel.stages if s.kind == Stage.Kind.RECHECK), None)
+        if (
+            recheck is not None
+            and recheck.state == Stage.State.SIGNED
+            and current.kind == Stage.Kind.FIRST_INSTALL
+            and works
+            and user.has_perm(REVIEW_PERM)
+        ):
+            actions.append(Action("No build work needed?", _url("build_stages_not_needed", job)))
     if panel.run is not None and user.has_perm(THERMAL_PERM):
         actions.append(Action("Temperatures", _url("thermal_readings", job)))
     if user.has_perm(TRAIL_PERM):
@@ -168,7 +185,7 @@ def _secondary(panel: StagePanel, job: Job, user, works: bool) -> None:
         actions.append(Action("Wiring record", _url("revision_list", job)))
     else:
         actions.append(Action("Record preview", _url("record_preview", job)))
-    if not panel.locked and current.takes_torque_readings:
+    if not panel.locked and current.kind in (Stage.Kind.FIRST_INSTALL, Stage.Kind.RETORQUE):
         actions.append(
             Action("Stage sheet (PDF)", _url("stage_sheet", job, kind=int(current.kind)))
         )

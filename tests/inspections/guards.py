@@ -25,6 +25,9 @@ GUARDED_TABLES = (
     # The wiring record's revisions point at the approval sign-off: they go first.
     "wiring_recordrevision",
     "wiring_ownerlinkvisit",
+    # A return visit's last record (inspections 0009): its readings before it.
+    "inspections_priorreading",
+    "inspections_priorrecord",
     "inspections_signoff",
     "inspections_checklistmark",
     "inspections_thermalwaiver",

@@ -15,6 +15,7 @@ from django.core.management import call_command
 from django.test import TestCase
 from django.utils import timezone
 
+from inspections import demo_history
 from inspections.models import (
     HeatCycleRun,
     SignOff,
@@ -45,6 +46,11 @@ MOTORHOME = "48 V system with 230 V inverter/charger"
 TRUCK = "24 V house system for the box body"
 BOAT = "Replace house bank and rewire the DC panel"
 RETROFIT = "Retrofit: add second solar string"
+COMPACT_BUILD, ADD_ON, RETURN_TITLE = (
+    demo_history.COMPACT_BUILD,
+    demo_history.ADD_ON,
+    demo_history.RETURN_TITLE,
+)
 
 
 def _demo() -> None:
@@ -114,6 +120,10 @@ class TestTheLoadedDemo(TestCase):
             TRUCK: Job.Status.RETORQUE,
             BOAT: Job.Status.APPROVED,
             RETROFIT: Job.Status.HANDED_OVER,
+            # The shop's history (inspections.demo_history) and the compact van back.
+            COMPACT_BUILD: Job.Status.HANDED_OVER,
+            ADD_ON: Job.Status.HANDED_OVER,
+            RETURN_TITLE: Job.Status.RECHECK,
         }
         # Every stored status is the one the stages give (none was set by hand).
         for job in Job.objects.all():
@@ -186,3 +196,52 @@ class TestTheLoadedDemo(TestCase):
         for run in HeatCycleRun.objects.all():
             assert run.started_at < run.ended_at < now
         assert ThermalReading.objects.exists()
+
+
+class TestTheDemoHistory(TestCase):
+    """The shop's history (inspections.demo_history): approvals over past months, and the
+    compact van back for its yearly check, its re-check partly recorded."""
+
+    @classmethod
+    def setUpTestData(cls) -> None:
+        _demo()
+
+    def test_history_jobs_were_approved_months_ago(self) -> None:
+        now = timezone.now()
+        ages = sorted(
+            round((now - signoff.signed_at).days)
+            for signoff in SignOff.objects.filter(
+                kind=SignOff.Kind.APPROVAL, job__title__in=[COMPACT_BUILD, ADD_ON]
+            )
+        )
+        # 4 months, 8 months, 11½ months, 13 months (inspections.demo_history.ADD_ONS).
+        assert len(ages) == 4 and ages[0] >= 115 and ages[-1] >= 390
+        for job in Job.objects.filter(title__in=[COMPACT_BUILD, ADD_ON]):
+            assert job_is_locked(job)
+            for signoff in SignOff.objects.filter(job=job):
+                assert signoff_is_current(signoff), (job.number, signoff.kind)
+                assert signoff.signed_at < now
+
+    def test_the_compact_van_is_back_for_its_yearly_re_check(self) -> None:
+        from inspections.models import PriorRecord
+        from inspections.services.return_visit import last_readings
+
+        visit = _job(RETURN_TITLE)
+        earlier = _job(COMPACT_BUILD)
+        assert visit.kind == Job.Kind.RETURN_VISIT and visit.follows_id == earlier.pk
+        assert PriorRecord.objects.get(job=visit).job_number == earlier.number
+        recheck = _stage(RETURN_TITLE, Stage.Kind.RECHECK)
+        progress = torque_progress(recheck)
+        assert 0 < progress.read < progress.total  # partly recorded
+        assert progress.found_loose == 2 and "2 found loose again" in str(progress)
+        assert len(last_readings(visit)) == progress.total
+
+    def test_the_insight_and_re_check_pages_show_the_history(self) -> None:
+        from django.test import Client
+
+        client = Client()
+        client.force_login(get_user_model().objects.get(username="june"))
+        for url in ("/insights/loosening/", "/insights/wrenches/", "/insights/technicians/"):
+            assert client.get(url).status_code == 200, url
+        page = client.get("/rechecks/").content.decode()
+        assert "Overdue" in page and _job(RETURN_TITLE).number in page
