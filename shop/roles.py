@@ -106,6 +106,8 @@ _REVIEW = ["inspections.approve_job", "inspections.reopen_job", "inspections.wai
 # figures (coaching) and make and retire rules; technicians see none of it.
 _INSIGHTS = ["insights.view_insights"]
 _LEAD_INSIGHTS = ["insights.view_technician_insights", "insights.manage_shop_rules"]
+# The vehicles due for their re-check (mirrored by reminders/0002): leads and office.
+_RECHECKS = ["reminders.view_rechecks"]
 
 # Mirrored, frozen, by the data migrations shop/0003_role_review (shop and circuits) and
 # inspections/0003_roles (inspections).
@@ -137,6 +139,7 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         *_REVIEW,
         *_INSIGHTS,
         *_LEAD_INSIGHTS,
+        *_RECHECKS,
     ],
     OFFICE: [
         *_VIEW_SHOP,
@@ -155,6 +158,7 @@ ROLE_PERMISSIONS: dict[str, list[str]] = {
         *_VIEW_GATES,
         "inspections.manage_checklist",
         *_INSIGHTS,
+        *_RECHECKS,
     ],
 }
 

@@ -84,6 +84,7 @@ INSTALLED_APPS = [
     "inspections",
     "insights",
     "wiring",
+    "reminders",
 ]
 
 MIDDLEWARE = [

@@ -42,6 +42,7 @@ urlpatterns = [
     path("", include("inspections.urls")),
     path("", include("insights.urls")),
     path("", include("wiring.urls")),
+    path("", include("reminders.urls")),
     path("admin/", admin.site.urls),
 ]
 

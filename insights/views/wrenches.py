@@ -16,6 +16,7 @@ from insights.charts import ChartRow, chart
 from insights.stats import wilson
 from insights.views.common import csv_response, page, period_form, wants_csv
 from inspections.models import TorqueWrench
+from inspections.services.calibration import AS_FOUND_LIMIT_PCT, calibration_history
 from shop.views.access import require_perm
 
 VIEW_PERM = "insights.view_insights"
@@ -85,6 +86,7 @@ def _rows(period) -> list[dict]:
                 "due_in": (wrench.calibration_due - today).days,
                 "kinds": kinds,
                 "flagged": any(k["flagged"] for k in kinds),
+                "calibrations": calibration_history(wrench),
             }
         )
     # Flagged wrenches first (they want calibrating early), then by shop id.
@@ -171,6 +173,7 @@ def insights_wrenches(request: HttpRequest) -> HttpResponse:
         rows=rows,
         figure=_chart(rows) if rows else None,
         drift={"last": DRIFT_LAST, "min": DRIFT_MIN, "points": DRIFT_POINTS},
+        calibration_limit=AS_FOUND_LIMIT_PCT,
     )
 
 

@@ -27,6 +27,7 @@ from django.utils import timezone
 from django.views.decorators.http import require_GET, require_http_methods, require_POST
 
 from inspections.services.status import receipt_in_force
+from reminders.queries import recheck_for_vehicle
 from shop.models import ShopProfile
 from shop.views.access import _get_job_for_user
 from wiring.models import OwnerLink, OwnerLinkVisit, RecordRevision
@@ -236,12 +237,17 @@ def owner_record(request: HttpRequest, token: str) -> HttpResponse:
         "revisions": list(RecordRevision.objects.filter(job=job).order_by("-number")),
         "receipt": receipt_in_force(job),
         "verify_url": reverse("record_verify"),
+        # The vehicle's next re-check (reminders.queries), whichever job it counts from.
+        "recheck": recheck_for_vehicle(job.vehicle),
     }
     return _private(render(request, "wiring/owner_record.html", context))
 
 
 @require_GET
 def owner_record_pdf(request: HttpRequest, token: str, revision: int) -> HttpResponse:
+    if revision > 2_147_483_647:
+        # Past any revision number the visit log can hold (a PositiveIntegerField).
+        raise Http404("This record has no such revision.")
     link, refusal = _open_link(request, token, revision=revision)
     if refusal is not None:
         return refusal
