@@ -8,6 +8,9 @@ import shutil
 import subprocess
 
 import pytest
+from django.db import connection
+
+from tests.inspections.guards import clear_evidence
 
 CHROMIUM = "/usr/bin/chromium"
 TABLET = {"width": 820, "height": 1180}
@@ -74,3 +77,25 @@ def sign_in(live_server, page):
         return page
 
     return _sign_in
+
+
+@pytest.fixture
+def evidence_cleared(transactional_db):
+    """Readings, marks and sign-offs are append-only (database triggers): on SQLite, whose
+    flush deletes row by row, clear them first; PostgreSQL's flush truncates, which row
+    triggers do not see."""
+    yield
+    if connection.vendor == "sqlite":
+        clear_evidence()
+
+
+@pytest.fixture
+def signing_key(settings, tmp_path):
+    """The shop's record-signing key and a media store in folders of this test's own (the
+    live server reads the same settings)."""
+    from wiring import signing
+
+    settings.SIGNING_DIR = tmp_path / "signing"
+    settings.MEDIA_ROOT = tmp_path / "media"
+    settings.SIGNING_TIMESTAMP_URL = ""
+    return signing.create_key(shop_name="Scenario Test Conversions")

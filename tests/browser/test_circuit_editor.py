@@ -1,5 +1,6 @@
 """On a tablet, the circuit editor's live panel follows what is typed without a page load,
-and a lead waives a finding in place."""
+and a lead waives a finding in place; both pages pass axe (no serious or critical
+violation) as they stand after the change."""
 
 from __future__ import annotations
 
@@ -9,6 +10,8 @@ from django.urls import reverse
 from playwright.sync_api import expect
 
 from circuits.sizing import CircuitInput, size_circuit
+from tests.browser.helpers import assert_accessible
+from tests.browser.scenario import shots
 from tests.circuits.factories import make_circuit, make_device
 from tests.factories import make_job
 
@@ -69,6 +72,8 @@ def test_live_panel_follows_current_and_length_in_feet_or_metres(live_server, si
     expect(drop).to_contain_text(heavier["drop"])
     # The summary bar above the fold follows too.
     expect(page.locator("#panel-summary")).to_contain_text(heavier["size"])
+    assert_accessible(page, "circuit editor, live panel")
+    shots(page, "18-circuit-editor")
 
     assert page.evaluate("window.__sameDocument") is True  # no page load happened
     assert not job.circuits.exists()  # previews save nothing
@@ -97,6 +102,7 @@ def test_lead_waives_a_finding_and_sees_it_marked_waived(live_server, sign_in, l
     expect(finding).to_contain_text("Waived by Test Lead")
     expect(finding).to_contain_text("replaced at the next service")
     expect(finding.locator(".waived-tag")).to_be_visible()
+    assert_accessible(page, "circuit page, finding waived")
     assert page.evaluate("window.__sameDocument") is True
 
     box = finding.get_by_role("button", name="Withdraw waiver").bounding_box()

@@ -11,6 +11,7 @@ from PIL import Image
 from playwright.sync_api import expect
 
 from inspections.models import SignOff, Stage
+from tests.browser.helpers import finger_stroke
 from tests.factories import make_job
 from tests.inspections.factories import (
     PASSWORD,
@@ -37,19 +38,6 @@ def ready_job(transactional_db, technician):
     mark_all(install, by=technician)
     yield job
     clear_evidence()
-
-
-def finger_stroke(page, canvas) -> None:
-    """A finger drawn across the pad: real touch events through the DevTools protocol, so
-    the page sees pointer events of type "touch" as on a tablet."""
-    box = canvas.bounding_box()
-    cdp = page.context.new_cdp_session(page)
-    x, y = box["x"] + 40, box["y"] + box["height"] * 0.6
-    cdp.send("Input.dispatchTouchEvent", {"type": "touchStart", "touchPoints": [{"x": x, "y": y}]})
-    for step in range(1, 30):
-        point = {"x": x + step * 15, "y": y - (step % 6) * 12}
-        cdp.send("Input.dispatchTouchEvent", {"type": "touchMove", "touchPoints": [point]})
-    cdp.send("Input.dispatchTouchEvent", {"type": "touchEnd", "touchPoints": []})
 
 
 def test_a_technician_signs_with_a_finger(live_server, sign_in, technician, ready_job):

@@ -7,7 +7,6 @@ from __future__ import annotations
 import re
 
 import pytest
-from django.db import connection
 from django.urls import reverse
 from playwright.sync_api import expect
 
@@ -15,20 +14,10 @@ from circuits.models import Termination
 from inspections.models import TorqueRecord
 from tests.factories import make_job
 from tests.inspections.factories import make_spec_circuit, make_wrench
-from tests.inspections.guards import clear_evidence
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 
 SYNC = "**/readings/sync/**"
-
-
-@pytest.fixture
-def evidence_cleared(transactional_db):
-    """Readings are append-only (database triggers): on SQLite, whose flush deletes row by
-    row, clear them first; PostgreSQL's flush truncates, which row triggers do not see."""
-    yield
-    if connection.vendor == "sqlite":
-        clear_evidence()
 
 
 def _walk(job) -> list[Termination]:
