@@ -3,7 +3,7 @@
 Run: python bench/insight.py [--sqlite-only]
 Seeds a temporary SQLite database (a file under var/, removed afterwards) and, when a
 PostgreSQL server answers on 127.0.0.1:5432 (or at BENCH_PG_URL), a database named
-ampwright_bench_insight_<pid>, created and dropped here. Times each insight page through
+<BENCH_DB_PREFIX>_insight_<pid>, created and dropped here. Times each insight page through
 Django's test Client as a lead: one warm-up request, then the median of 5.
 
 Goal (chosen for a shop LAN and a tablet): every page and its CSV under 1 s (median of
@@ -32,6 +32,8 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
+
+import _common  # noqa: E402
 
 # BENCH_SCALE=0.1 runs a tenth of the data set (a quick look while working on a query).
 SCALE = float(os.environ.get("BENCH_SCALE", "1"))
@@ -199,7 +201,7 @@ def child(backend: str) -> None:
     name = (
         str(ROOT / "var" / f"bench-insight-{os.getpid()}.sqlite3")
         if backend == "sqlite"
-        else f"ampwright_bench_insight_{os.getpid()}"
+        else _common.scratch_db_name("insight")
     )
     connection.settings_dict["TEST"]["NAME"] = name
     settings.PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]
@@ -213,6 +215,10 @@ def child(backend: str) -> None:
         print(f"  {_load()}", flush=True)
         for url, seconds in time_pages():
             verdict = "ok" if seconds < GOAL_S else "OVER GOAL"
+            _common.emit(
+                "insight", f"{'SQLite' if backend == 'sqlite' else 'PostgreSQL'}: {url}",
+                round(seconds * 1000), "ms", f"< {GOAL_S * 1000:.0f} ms", seconds < GOAL_S,
+            )  # fmt: skip
             print(
                 f"  {url:40} {seconds * 1000:8.0f} ms   goal < {GOAL_S * 1000:.0f} ms  {verdict}",
                 flush=True,

@@ -3,7 +3,8 @@
 Run: python bench/record.py [--keep DIR]
 Builds, in a throwaway SQLite database (or in DIR, kept and reused on the next run with
 the same DIR), a job of 150 circuits, 600 terminations, 1,800 torque readings (first
-install and retorque, with re-reads) and 20 photos, through the services. Then, each in
+install and retorque, with re-reads) and 20 photos, through the services, with its
+checklist marked and temperatures on every fourth end as for a job ready for approval. Then, each in
 a fresh child process and each twice (record, table, record, table):
 
 - the record: `render_record_pdf` (data, template, the whole PDF/A-3b with its embedded
@@ -24,7 +25,6 @@ under 400 MB peak, and no more than 1.5 × the plain table. Not a test (no timed
 
 from __future__ import annotations
 
-import datetime
 import io
 import json
 import os
@@ -34,14 +34,13 @@ import subprocess
 import sys
 import tempfile
 import time
-import uuid
-from pathlib import Path
 
-ROOT = Path(__file__).resolve().parents[1]
-sys.path.insert(0, str(ROOT))
+import _common
 
-CIRCUITS = 150  # × 2 conductors × 2 ends = 600 terminations
-PHOTOS = 20
+ROOT = _common.ROOT
+
+CIRCUITS = _common.LARGE_CIRCUITS  # × 2 conductors × 2 ends = 600 terminations
+PHOTOS = _common.LARGE_PHOTOS
 GOAL_S, GOAL_MB, GOAL_RATIO = 5.0, 400.0, 1.5
 
 
@@ -54,96 +53,16 @@ def _setup(var_dir: str) -> None:
     django.setup()
 
 
-def _photo(n: int):
-    from django.core.files.uploadedfile import SimpleUploadedFile
-    from PIL import Image, ImageDraw
-
-    image = Image.new("RGB", (1600, 1200), (200, 200, 200))
-    ImageDraw.Draw(image).rectangle([100 + n * 10, 100, 900, 700], outline=(20, 20, 20), width=12)
-    buffer = io.BytesIO()
-    image.save(buffer, format="JPEG", quality=85)
-    return SimpleUploadedFile(f"lug-{n}.jpg", buffer.getvalue(), content_type="image/jpeg")
-
-
 def build() -> str:
-    """The large job, through the services; returns its number."""
-    from django.contrib.auth import get_user_model
-    from django.contrib.auth.models import Group
+    """The large job (bench/_common.py), through the services; returns its number."""
     from django.core.management import call_command
-    from django.utils import timezone
-
-    from circuits.models import Device, Terminal, Termination
-    from circuits.services import circuit_create
-    from inspections.models import Stage, TorqueWrench
-    from inspections.services import heat_cycle_log, torque_record_create
-    from shop import roles
-    from shop.models import Owner, ShopProfile, Vehicle
-    from shop.services import job_create
 
     call_command("migrate", verbosity=0)
-    tech = get_user_model().objects.create_user("bench-tech", first_name="Bench", last_name="Tech")
-    tech.groups.add(Group.objects.get(name=roles.TECHNICIAN))
-    owner = Owner.objects.create(name="Bench Owner")
-    vehicle = Vehicle.objects.create(owner=owner, kind="motorhome", make="Benchmark", model="L")
-    job = job_create(vehicle=vehicle, title="Large bench build", technicians=[tech])
-    wrench = TorqueWrench.objects.create(
-        code="TW-B1",
-        range_min=2,
-        range_max=60,
-        calibration_due=timezone.localdate() + datetime.timedelta(days=90),
-    )
-    devices = []
-    for n in range(16):
-        device = Device.objects.create(job=job, name=f"Bus {n:02d}", kind="busbar")
-        for name, polarity in (("+", "pos"), ("-", "neg")):
-            Terminal.objects.create(
-                device=device, name=name, polarity=polarity, stud_size="M8",
-                manual_torque_value=10, manual_torque_unit="N*m",
-            )  # fmt: skip
-        devices.append(device)
-    for n in range(CIRCUITS):
-        a, b = devices[n % 16], devices[(n * 7 + 3) % 16]
-        if a == b:
-            b = devices[(n + 1) % 16]
-        circuit_create(
-            job=job, tag=f"D-{n + 1:03d}", name=f"Branch {n + 1}", role="dc_branch",
-            from_device=a, to_device=b, nominal_voltage=12, design_current_a=5 + n % 40,
-            length_m=1 + (n % 9), conductor_size=("10 AWG", "8 AWG", "6 AWG", "4 AWG")[n % 4],
-            protection_type="fuse", protection_a=(15, 25, 40, 60)[n % 4],
-            colour_a="red", colour_b="black",
-        )  # fmt: skip
-    ends = list(Termination.objects.filter(circuit__job=job).order_by("pk"))
-    stages = {s.kind: s for s in Stage.objects.filter(job=job)}
-
-    def reading(end, stage, value, **extra):
-        return torque_record_create(
-            termination=end, stage=stage, value=value, unit="N*m", wrench=wrench,
-            technician=tech, client_key=str(uuid.uuid4()), **extra,
-        )  # fmt: skip
-
-    photos = 0
-    for i, end in enumerate(ends):  # first install: every other end low, then re-read
-        if i % 2 == 0:
-            reading(end, stages[Stage.Kind.FIRST_INSTALL], "8")
-        extra = {"photo": _photo(photos)} if photos < PHOTOS // 2 and i % 30 == 0 else {}
-        photos += bool(extra)
-        reading(end, stages[Stage.Kind.FIRST_INSTALL], "10", **extra)
-    heat = stages[Stage.Kind.HEAT_CYCLE]
-    heat.state, heat.opened_at = Stage.State.OPEN, timezone.now()
-    heat.save()
-    end_at = timezone.now() - datetime.timedelta(minutes=ShopProfile.load().soak_minutes + 5)
-    heat_cycle_log(
-        job=job, start=end_at - datetime.timedelta(hours=1), end=end_at,
-        peak_current_a="120", ambient_c="21", by=tech,
-    )  # fmt: skip
-    retorque = Stage.objects.get(job=job, kind=Stage.Kind.RETORQUE)
-    for i, end in enumerate(ends):  # retorque: every other end found loose, then re-read
-        if i % 2 == 1:
-            reading(end, retorque, "9.6", found_loose=True)
-        extra = {"photo": _photo(photos)} if photos < PHOTOS and i % 30 == 1 else {}
-        photos += bool(extra)
-        reading(end, retorque, "10.2", **extra)
-    return job.number
+    number = _common.build_large_job(circuits=CIRCUITS, photos=PHOTOS)
+    # As a record is really issued: the checklist marked (an approved job has no item left
+    # open, so the record lists only its exceptions) and temperatures taken at the run.
+    _common.add_page_extras(number)
+    return number
 
 
 def plain_table_html(context: dict) -> str:
@@ -282,6 +201,19 @@ def measure(var_dir: str, keep: bool) -> None:
         f"record: {rec['pages']} pages, {rec['bytes'] / 1e6:.1f} MB;"
         f" plain table: {tab['pages']} pages"
     )
+    what = f"record render ({CIRCUITS} circuits, {rec['pages']} pages)"
+    _common.emit(
+        "record", f"{what}, wall", round(rec["wall"], 2), "s", f"< {GOAL_S:g} s",
+        rec["wall"] < GOAL_S,
+    )  # fmt: skip
+    _common.emit("record", f"{what}, CPU", round(rec["cpu"], 2), "s")
+    _common.emit(
+        "record", "record render, peak memory", round(mb), "MB", f"< {GOAL_MB:g} MB", mb < GOAL_MB
+    )
+    _common.emit(
+        "record", "record / plain table, wall", round(ratio, 2), "×", f"≤ {GOAL_RATIO:g} ×",
+        ratio <= GOAL_RATIO,
+    )  # fmt: skip
 
 
 def main() -> None:

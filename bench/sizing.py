@@ -15,6 +15,8 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
+import _common  # noqa: E402
+
 from circuits.sizing import CircuitInput, catalogue, size_circuit  # noqa: E402
 from circuits.sizing.protection import STANDARD_RATINGS_A  # noqa: E402
 
@@ -72,6 +74,10 @@ def main() -> int:
         f"over {PASSES} passes "
         f"({verdict} the {BUDGET_MS:g} ms budget)"
     )
+    _common.emit(
+        "sizing", f"size {CIRCUITS} circuits, median of {PASSES}", round(median, 1), "ms",
+        f"< {BUDGET_MS:g} ms", median < BUDGET_MS,
+    )  # fmt: skip
     return 0
 
 

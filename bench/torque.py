@@ -5,8 +5,9 @@ Run by hand (never in the test suite):
     .venv/bin/python bench/torque.py                      # both databases, 10 clients, 30 s
     .venv/bin/python bench/torque.py --db sqlite --seconds 10 --clients 4
 
-For each database (a SQLite file in a temporary directory; PostgreSQL at
-postgres://postgres@127.0.0.1:5432/ampwright_bench_<pid>, created and dropped here) it
+For each database (a SQLite file in a temporary directory; PostgreSQL: a scratch database
+<BENCH_DB_PREFIX>_torque_<pid> on BENCH_PG_URL, default postgres://postgres@127.0.0.1:5432,
+created and dropped here) it
 migrates, sets up a technician, a calibrated wrench and a job with 200 terminations (a
 spec of 10 N·m each) through the services, starts gunicorn with 3 workers on a free
 loopback port (DEBUG off, static files collected, as in production), signs in the clients
@@ -35,8 +36,6 @@ import json
 import os
 import random
 import secrets
-import signal
-import socket
 import statistics
 import subprocess
 import sys
@@ -49,14 +48,15 @@ import urllib.request
 from dataclasses import dataclass, field
 from pathlib import Path
 
-ROOT = Path(__file__).resolve().parents[1]
+import _common
+from _common import free_port, pg_admin, stop, wait_for
+
+ROOT = _common.ROOT
 PYTHON = sys.executable
-GUNICORN = str(ROOT / ".venv" / "bin" / "gunicorn")
 WORKERS = 3
 CIRCUITS = 50  # 4 terminations each
 RESEND_SHARE = 0.05
 P95_GOAL_MS = 100.0
-PG_ADMIN = "postgres://postgres@127.0.0.1:5432/postgres"
 KEY_PREFIX = "bench-"
 USERNAME = "bench-tech"
 
@@ -269,38 +269,6 @@ class Client:
                     tally.errors.append(f"resend stored twice: {record} and {again}")
 
 
-def free_port() -> int:
-    with socket.socket() as sock:
-        sock.bind(("127.0.0.1", 0))
-        return sock.getsockname()[1]
-
-
-def wait_for(base: str, proc: subprocess.Popen, seconds: float = 30) -> bool:
-    deadline = time.monotonic() + seconds
-    while time.monotonic() < deadline:
-        if proc.poll() is not None:
-            return False
-        try:
-            with urllib.request.urlopen(f"{base}/login/", timeout=2) as response:
-                if response.status == 200:
-                    return True
-        except (OSError, urllib.error.URLError):
-            time.sleep(0.2)
-    return False
-
-
-def stop(proc: subprocess.Popen | None) -> None:
-    """Gunicorn's master stops its workers on SIGTERM; the group is killed if it hangs."""
-    if proc is None or proc.poll() is not None:
-        return
-    proc.send_signal(signal.SIGTERM)
-    try:
-        proc.wait(timeout=15)
-    except subprocess.TimeoutExpired:
-        os.killpg(proc.pid, signal.SIGKILL)
-        proc.wait()
-
-
 def child(env: dict, *args: str) -> str:
     done = subprocess.run(
         [PYTHON, __file__, *args], env=env, cwd=ROOT, capture_output=True, text=True
@@ -319,14 +287,7 @@ def bench(name: str, env: dict, *, seconds: float, clients: int) -> dict:
     with open(Path(env["AMPWRIGHT_VAR_DIR"]) / "gunicorn.log", "w") as log:
         try:
             try:
-                proc = subprocess.Popen(
-                    [GUNICORN, "shop.wsgi:application", "--workers", str(WORKERS)]
-                    + ["--bind", f"127.0.0.1:{port}", "--chdir", str(ROOT), "--timeout", "60"],
-                    env=env,
-                    stdout=log,
-                    stderr=subprocess.STDOUT,
-                    start_new_session=True,
-                )
+                proc = _common.start_gunicorn(env, port, WORKERS, log)
             except OSError as exc:
                 print(f"bench/torque.py: gunicorn did not start ({name}): {exc}", file=sys.stderr)
                 raise SystemExit(1) from None
@@ -390,32 +351,20 @@ def report(r: dict, *, seconds: float, clients: int) -> bool:
     print(f"  {'stored':<22}{r['stored']:>12}   = sent  {mark(ok_stored)}")
     for kind in sorted(set(r["errors"]))[:5]:
         print(f"    error: {kind} (x{r['errors'].count(kind)})")
+    what = f"{r['name']}: torque entry, {clients} clients"
+    _common.emit(
+        "torque", f"{what}, p95", round(r["p95"], 1), "ms", f"< {P95_GOAL_MS:g} ms", ok_p95
+    )
+    _common.emit("torque", f"{what}, requests/s", round(r["rps"], 1), "/s")
+    _common.emit("torque", f"{what}, errors", len(r["errors"]), "", "0", ok_errors)
+    _common.emit(
+        "torque", f"{what}, stored / sent", f"{r['stored']} / {r['sent']}", "", "equal", ok_stored
+    )
     return ok_errors and ok_p95 and ok_stored
 
 
 def base_env(var_dir: Path) -> dict:
-    env = {k: v for k, v in os.environ.items() if k != "DATABASE_URL"}
-    env.update(
-        DJANGO_SETTINGS_MODULE="shop.settings",
-        DEBUG="0",
-        SECRET_KEY=secrets.token_urlsafe(50),
-        ALLOWED_HOSTS="127.0.0.1",
-        SECURE_SSL_REDIRECT="0",
-        AMPWRIGHT_VAR_DIR=str(var_dir),
-        STATIC_ROOT=str(var_dir / "static"),
-        MEDIA_ROOT=str(var_dir / "media"),
-        LOG_LEVEL="ERROR",
-        SECURITY_LOG_LEVEL="ERROR",
-    )
-    var_dir.mkdir(parents=True, exist_ok=True)
-    return env
-
-
-def pg_admin(sql: str) -> None:
-    import psycopg
-
-    with psycopg.connect(PG_ADMIN.replace("postgres://", "postgresql://"), autocommit=True) as c:
-        c.execute(sql)
+    return _common.production_env(var_dir, secret=secrets.token_urlsafe(50))
 
 
 def main() -> int:
@@ -438,9 +387,9 @@ def main() -> int:
             env = base_env(Path(tmp) / "sqlite")
             results.append(bench("SQLite", env, seconds=args.seconds, clients=args.clients))
         if args.db in ("postgres", "both"):
-            name = f"ampwright_bench_{os.getpid()}"
+            name = _common.scratch_db_name("torque")
             env = base_env(Path(tmp) / "postgres")
-            env["DATABASE_URL"] = f"postgres://postgres@127.0.0.1:5432/{name}"
+            env["DATABASE_URL"] = _common.pg_url(name)
             pg_admin(f'CREATE DATABASE "{name}"')
             try:
                 results.append(bench("PostgreSQL", env, seconds=args.seconds, clients=args.clients))
