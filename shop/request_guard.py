@@ -29,4 +29,15 @@ class RejectNulCharactersMiddleware:
                 "This address contains a character that cannot be used (NUL).",
                 content_type="text/plain; charset=utf-8",
             )
+        # HTTP forbids NUL in a header too; the sign-in throttle and the owner-link log
+        # store the browser's User-Agent, which PostgreSQL would refuse (a 500).
+        if any(
+            key.startswith("HTTP_") and isinstance(value, str) and "\x00" in value
+            for key, value in request.META.items()
+        ):
+            security_log("bad_request", request=request, reason="NUL character in a header")
+            return HttpResponseBadRequest(
+                "A header of this request contains a character that cannot be used (NUL).",
+                content_type="text/plain; charset=utf-8",
+            )
         return self.get_response(request)

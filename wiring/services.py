@@ -280,7 +280,8 @@ def owner_link_visit(
     return OwnerLinkVisit.objects.create(
         link=link,
         address=address or None,
-        user_agent=str(user_agent or "")[:300],
+        # A NUL in the header would reach PostgreSQL, which refuses it (a 500 for the owner).
+        user_agent=str(user_agent or "").replace("\x00", "")[:300],
         outcome=outcome,
         revision=revision,
     )

@@ -92,7 +92,8 @@ def _load_manifest(directory: Path) -> dict:
         raise BackupError(f"{directory} is not a backup: it has no {MANIFEST}.", status=USAGE)
     try:
         manifest = json.loads(path.read_text(encoding="utf-8"))
-    except (OSError, UnicodeDecodeError, ValueError) as error:
+    except (OSError, UnicodeDecodeError, ValueError, RecursionError) as error:
+        # RecursionError: arrays nested thousands deep exhaust the decoder's stack.
         raise _damaged(f"it is not readable JSON ({error})") from None
     if not isinstance(manifest, dict) or manifest.get("format") != FORMAT:
         raise _damaged("it is not an Ampwright backup manifest")
@@ -105,7 +106,9 @@ def _load_manifest(directory: Path) -> dict:
             f" (version {FORMAT_VERSION}): restore it with the version that made it."
         )
     database = manifest.get("database")
-    if not isinstance(database, dict) or database.get("vendor") not in VENDOR_WORDS:
+    if not isinstance(database, dict) or not isinstance(database.get("vendor"), str):
+        raise _damaged("it does not say which database it holds")
+    if database["vendor"] not in VENDOR_WORDS:
         raise _damaged("it does not say which database it holds")
     expected = {"sqlite": SQLITE_FILE, "postgresql": PG_FILE}[database["vendor"]]
     if database.get("file") != expected:

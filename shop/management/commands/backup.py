@@ -13,9 +13,10 @@ from django.core.management.base import BaseCommand
 from django.db import DatabaseError
 
 from shop.backup import REFUSED, BackupError, counts_text, make_backup, manifest_digest, megabytes
+from shop.management.one_line import OneLineArgumentErrors
 
 
-class Command(BaseCommand):
+class Command(OneLineArgumentErrors, BaseCommand):
     help = (
         "Back up the database, the media files (photos, signed records) and a manifest with"
         " each file's SHA-256 into DIR, which must be new or empty. The signing key is left"

@@ -14,9 +14,10 @@ from django.core.management.base import BaseCommand
 from django.db import DatabaseError
 
 from shop.backup import REFUSED, BackupError, check_backup, counts_text, restore_backup
+from shop.management.one_line import OneLineArgumentErrors
 
 
-class Command(BaseCommand):
+class Command(OneLineArgumentErrors, BaseCommand):
     help = (
         "Restore a backup made by `manage.py backup` into this server's database and media"
         " store. Every file is checked first; a database holding records is replaced only"

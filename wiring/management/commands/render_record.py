@@ -16,12 +16,13 @@ from django.core.management.base import BaseCommand, CommandError
 from django.utils import timezone
 
 from inspections.services import job_is_locked
+from shop.management.one_line import OneLineArgumentErrors
 from shop.models import Job
 from wiring import signing
 from wiring.services import record_issue, verify_url_for
 
 
-class Command(BaseCommand):
+class Command(OneLineArgumentErrors, BaseCommand):
     help = "Write a job's wiring record (signed when approved, a draft otherwise) to a PDF."
 
     def add_arguments(self, parser) -> None:

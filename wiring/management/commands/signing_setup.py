@@ -16,11 +16,12 @@ from pathlib import Path
 
 from django.core.management.base import BaseCommand, CommandError
 
+from shop.management.one_line import OneLineArgumentErrors
 from shop.models import ShopProfile
 from wiring import signing
 
 
-class Command(BaseCommand):
+class Command(OneLineArgumentErrors, BaseCommand):
     help = "Create (or import) the shop's key and certificate for signing wiring records."
 
     def add_arguments(self, parser) -> None:

@@ -12,10 +12,11 @@ from pathlib import Path
 
 from django.core.management.base import BaseCommand
 
+from shop.management.one_line import OneLineArgumentErrors
 from wiring.verify import MAX_BYTES, too_large, verify_pdf
 
 
-class Command(BaseCommand):
+class Command(OneLineArgumentErrors, BaseCommand):
     help = "Check that a wiring record PDF was issued by this shop and is unchanged."
 
     def add_arguments(self, parser) -> None:
@@ -27,7 +28,8 @@ class Command(BaseCommand):
             size = path.stat().st_size
             verdict = too_large() if size > MAX_BYTES else verify_pdf(path.read_bytes())
         except OSError as error:
-            self.stderr.write(f"Cannot read {file}: {error.strerror or error}")
+            name = " ".join(file.split())  # one line, even for a name with line breaks
+            self.stderr.write(f"Cannot read {name}: {error.strerror or error}")
             sys.exit(1)
         if not verdict.ok:
             self.stderr.write(verdict.headline)
