@@ -36,6 +36,8 @@ from cryptography.x509.oid import NameOID
 from django.conf import settings
 from django.utils.html import escape
 
+from wiring.loop import outside_running_loop
+
 logger = logging.getLogger(__name__)
 
 KEY_FILE = "key.pem"
@@ -362,11 +364,11 @@ def sign_pdf(
 
         timestamper = _timestamper(url)
         if timestamper is None:
-            return attempt(None)
+            return outside_running_loop(attempt, None)
         try:
-            return attempt(timestamper)
+            return outside_running_loop(attempt, timestamper)
         except Exception as error:  # any failure of the other party's server
             logger.warning(
                 "timestamp server %s failed (%s); signed without a timestamp", url, error
             )
-            return attempt(None)
+            return outside_running_loop(attempt, None)

@@ -26,6 +26,8 @@ from dataclasses import dataclass
 
 from django.utils import timezone
 
+from wiring.loop import outside_running_loop
+
 MAX_BYTES = 30 * 1024 * 1024  # far above any record (photos are printed small)
 PDF_MAGIC = b"%PDF-"
 CLAIM = re.compile(r"Wiring record (?P<job>\S+), revision (?P<revision>\d{1,6})")
@@ -234,7 +236,7 @@ def _validate(signature, trusted, *, moment: datetime.datetime | None):
 
     roots = [to_asn1(c) for c in trusted]
     context = ValidationContext(trust_roots=roots, moment=moment, allow_fetching=False)
-    return validate_pdf_signature(signature, context)
+    return outside_running_loop(validate_pdf_signature, signature, context)
 
 
 def _details(stored, demo: bool) -> tuple[str, ...]:

@@ -96,3 +96,28 @@ def test_the_stamp_names_the_shop_in_embedded_fonts():
         descriptor = ref.get_object().get("/DescendantFonts", [ref])[0].get_object()
         descriptor = descriptor.get("/FontDescriptor").get_object()
         assert any(k in descriptor for k in ("/FontFile", "/FontFile2", "/FontFile3"))
+
+
+def test_signing_and_validating_work_where_an_event_loop_runs(signing_key):
+    # pyHanko starts its own loop; under an ASGI server (or beside a browser driver) one
+    # already runs in the calling thread, where Python refuses a second.
+    import asyncio
+
+    import pypdf
+
+    from wiring import verify
+
+    blank = io.BytesIO()
+    writer = pypdf.PdfWriter()
+    writer.add_blank_page(width=595, height=842)
+    writer.write(blank)
+
+    async def in_a_loop():
+        signed = signing.sign_pdf(
+            blank.getvalue(), reason="loop check", location="bench", stamp_lines=["Loop check"]
+        )
+        signature = PdfFileReader(io.BytesIO(signed)).embedded_signatures[0]
+        return verify._validate(signature, [signing_key.certificate], moment=None)
+
+    status = asyncio.run(in_a_loop())
+    assert status.bottom_line and status.intact and status.valid and status.trusted
