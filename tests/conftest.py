@@ -9,6 +9,14 @@ from shop import roles
 from tests.factories import make_user
 
 
+@pytest.hookimpl(trylast=True)
+def pytest_collection_modifyitems(items):
+    """Browser tests run last. Playwright's loop stays open in the main thread until the
+    session ends (pyHanko's asyncio.run refuses to start beside it), and their flushes
+    empty the role groups the migrations made; every other test runs before either."""
+    items.sort(key=lambda item: item.get_closest_marker("browser") is not None)
+
+
 @pytest.fixture(scope="session", autouse=True)
 def _files_of_their_own(tmp_path_factory):
     """The tests' signing keys and stored files (photos, signed records) live in a folder

@@ -212,7 +212,7 @@ def _body(response) -> bytes:
 
 @pytest.mark.parametrize("size", SIZES)
 @pytest.mark.parametrize(
-    "page",
+    "job_page",
     [
         pytest.param(p, marks=pytest.mark.xfail(strict=True, reason=GROWING[p]))
         if p in GROWING
@@ -222,16 +222,16 @@ def _body(response) -> bytes:
     ids=_label,
 )
 def test_page_queries_do_not_grow_with_the_job(
-    page, size, world, db, django_assert_max_num_queries
+    job_page, size, world, db, django_assert_max_num_queries
 ):
     client = Client()
-    persona = page[1]
+    persona = job_page[1]
     if persona != "anon":
         client.force_login(world["people"][persona])
-    address = _address(page, world["jobs"][size])
+    address = _address(job_page, world["jobs"][size])
     client.get(address)  # warm: the first request of a session fills what later ones reuse
     connection.queries_log.clear()  # once full (9,000 entries) it would count nothing
-    with django_assert_max_num_queries(PAGES[page] + HEADROOM):
+    with django_assert_max_num_queries(PAGES[job_page] + HEADROOM):
         response = client.get(address)
         _body(response)
     assert response.status_code in (200, 302), (address, response.status_code)

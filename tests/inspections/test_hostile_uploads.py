@@ -106,18 +106,18 @@ SIGNATURES = {
 
 @pytest.mark.parametrize("kind", sorted(SIGNATURES))
 @pytest.mark.parametrize(
-    "page,job,who",
+    "view,job,who",
     [("stage_sign", "ready", "tech"), ("job_approve", "to_approve", "lead"),
      ("handover_receipt", "approved", "tech")],
 )  # fmt: skip
-def test_a_crafted_signature_is_refused_beside_the_pad(kind, page, job, who, world):
+def test_a_crafted_signature_is_refused_beside_the_pad(kind, view, job, who, world):
     """Whatever the pad's field carries, a signature that is not a drawn PNG of a pad's
     size is refused with a message beside it, and no sign-off is stored."""
     client = client_for(getattr(world, who))
-    args = [_number(world, job)] + ([1] if page == "stage_sign" else [])
+    args = [_number(world, job)] + ([1] if view == "stage_sign" else [])
     data = {"password": PASSWORD, "printed_name": "Ada Owner", "signature": SIGNATURES[kind]()}
     before = evidence_counts()
-    answer = client.post(reverse(page, args=args), data)
+    answer = client.post(reverse(view, args=args), data)
     assert_sane(answer, data["signature"])
     assert answer.status_code == 200
     assert "signature" in shown_errors(answer.content.decode())
@@ -135,23 +135,23 @@ PHOTOS = {
 
 
 @pytest.mark.parametrize("kind", sorted(PHOTOS))
-@pytest.mark.parametrize("page", ["torque_entry", "checklist_mark"])
-def test_a_hostile_photo_is_refused_or_kept_as_a_picture(kind, page, world, tech):
+@pytest.mark.parametrize("view", ["torque_entry", "checklist_mark"])
+def test_a_hostile_photo_is_refused_or_kept_as_a_picture(kind, view, world, tech):
     """A photo that is not a readable picture is refused beside the photo field and
     nothing is stored; never a server error."""
     from django.core.files.uploadedfile import SimpleUploadedFile
 
     content, name, kind_of = PHOTOS[kind]
     photo = SimpleUploadedFile(name, content, content_type=kind_of)
-    if page == "torque_entry":
-        target = reverse(page, args=[_number(world, "working"), _unread_end(world).pk])
+    if view == "torque_entry":
+        target = reverse(view, args=[_number(world, "working"), _unread_end(world).pk])
         data = {"value": "10", "unit": "N*m", "wrench": world.wrench.pk, "note": "with photo"}
     else:
         from inspections.services import checklist_items_for
 
         stage = Stage.objects.get(job=world.jobs["working"], kind=Stage.Kind.FIRST_INSTALL)
         item = next(i for i in checklist_items_for(stage=stage) if not i.derived)
-        target = reverse(page, args=[_number(world, "working"), 1])
+        target = reverse(view, args=[_number(world, "working"), 1])
         data = {"item_key": item.key, "result": "fail", "note": "see photo"}
     data["client_key"] = str(uuid.uuid4())
     before = evidence_counts()
@@ -162,18 +162,18 @@ def test_a_hostile_photo_is_refused_or_kept_as_a_picture(kind, page, world, tech
         assert errors and evidence_counts() == before, errors
 
 
-@pytest.mark.parametrize("page", ["torque_entry", "walking_order", "checklist_mark"])
-def test_the_htmx_answers_refuse_hostile_fields_too(page, world, tech):
+@pytest.mark.parametrize("view", ["torque_entry", "walking_order", "checklist_mark"])
+def test_the_htmx_answers_refuse_hostile_fields_too(view, world, tech):
     """The same posts from the page's script (HX-Request): partials, never a 500."""
     htmx = {"HTTP_HX_REQUEST": "true", "HTTP_HX_TARGET": "torque-entry"}
     number = _number(world, "working")
-    if page == "torque_entry":
-        target = reverse(page, args=[number, _unread_end(world).pk])
+    if view == "torque_entry":
+        target = reverse(view, args=[number, _unread_end(world).pk])
         base = {"value": "10", "unit": "N*m", "wrench": str(world.wrench.pk)}
-    elif page == "walking_order":
-        target, base = reverse(page, args=[number]), {"device": "1", "move": "up"}
+    elif view == "walking_order":
+        target, base = reverse(view, args=[number]), {"device": "1", "move": "up"}
     else:
-        target, base = reverse(page, args=[number, 1]), {"item_key": "x", "result": "pass"}
+        target, base = reverse(view, args=[number, 1]), {"item_key": "x", "result": "pass"}
     names = sorted({*base, "note", "client_key", "stage"})
 
     @FUZZ
