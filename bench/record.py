@@ -5,20 +5,22 @@ Builds, in a throwaway SQLite database (or in DIR, kept and reused on the next r
 the same DIR), a job of 150 circuits, 600 terminations, 1,800 torque readings (first
 install and retorque, with re-reads) and 20 photos, through the services, with its
 checklist marked and temperatures on every fourth end as for a job ready for approval. Then, each in
-a fresh child process and each twice (record, table, record, table):
+a fresh child process and each three times (record, table, record, table, ...):
 
 - the record: `render_record_pdf` (data, template, the whole PDF/A-3b with its embedded
-  CSV and JSON): wall time and CPU time of that call, and the child's peak memory (its
-  maximum resident set size, Django and all);
+  CSV and JSON), which lays this long record out in two processes at once
+  (wiring/render/split.py): wall time of that call, CPU time of BOTH processes, and the
+  peak memory of both added up (each one's maximum resident set size, Django and all);
 - the plain table: WeasyPrint's time for the SAME rows with the SAME cell text (every
   row of the record's schedule, torque log and thermal tables, from the same cell
   builders) as one bare HTML table: no stylesheet, default PDF, none of the record's
-  other sections. It runs with the same collector pause as the record (pdf.py), so the
-  ratio measures the record's markup, styles and extra content, not that trick.
+  other sections, in one process. It runs with the same collector pause as the record
+  (pdf.py), so the ratio (of CPU times: the record uses two cores, the table one)
+  measures the record's markup, styles, extra content and splitting, not those tricks.
 
-The machine is shared and noisy: the load average is printed before and after, both
-runs are printed, and the figure held against each goal is the quieter (lower) of the
-two. CPU time is printed beside wall time because under load wall time mostly measures
+The machine is shared and noisy: the load average is printed before and after, all
+runs are printed, and the figure held against each goal is the quietest (lowest) of the
+three. CPU time is printed beside wall time because under load wall time mostly measures
 the other processes. Goals on the development machine (2 cores): the record under 5 s,
 under 400 MB peak, and no more than 1.5 × the plain table. Not a test (no timed tests).
 """
@@ -42,6 +44,7 @@ ROOT = _common.ROOT
 CIRCUITS = _common.LARGE_CIRCUITS  # × 2 conductors × 2 ends = 600 terminations
 PHOTOS = _common.LARGE_PHOTOS
 GOAL_S, GOAL_MB, GOAL_RATIO = 5.0, 400.0, 1.5
+RUNS = 3  # each of record and table, alternating: the machine is shared and noisy
 
 
 def _setup(var_dir: str) -> None:
@@ -103,10 +106,16 @@ def child(what: str, number: str) -> None:
 
         from wiring.render import render_record_pdf
 
+        children = resource.getrusage(resource.RUSAGE_CHILDREN)
         wall, cpu = time.perf_counter(), time.process_time()
         pdf = render_record_pdf(job, revision=1, draft=False, verify_url="https://shop.example/v/")
         wall, cpu = time.perf_counter() - wall, time.process_time() - cpu
-        out = {"wall": wall, "cpu": cpu, "mb": _peak_mb(), "bytes": len(pdf)}
+        # A long record is laid out in two processes (wiring/render/split.py): the worker's
+        # CPU time and peak memory count too (it has ended and been waited for by now).
+        after = resource.getrusage(resource.RUSAGE_CHILDREN)
+        cpu += (after.ru_utime - children.ru_utime) + (after.ru_stime - children.ru_stime)
+        mb = _peak_mb() + (after.ru_maxrss / 1024 if after.ru_maxrss else 0.0)
+        out = {"wall": wall, "cpu": cpu, "mb": mb, "bytes": len(pdf)}
         out["pages"] = len(PdfReader(io.BytesIO(pdf)).pages)
     else:
         from weasyprint import HTML
@@ -156,13 +165,15 @@ def measure(var_dir: str, keep: bool) -> None:
         print(f"reusing {number} from {var_dir}", file=sys.stderr)
     print(f"load average before (1, 5, 15 min): {_load()}  ({os.cpu_count()} CPUs)")
     records, tables = [], []
-    for _ in range(2):
+    for _ in range(RUNS):
         records.append(_run_child("record", number))
         tables.append(_run_child("table", number))
     print(f"load average after:                 {_load()}")
     rec = min(records, key=lambda r: r["wall"])
     tab = min(tables, key=lambda r: r["wall"])
-    ratio = rec["wall"] / tab["wall"]
+    # The ratio is of CPU time: the record is laid out on two cores, the bare table on one,
+    # so a wall-time ratio would flatter the record's markup; CPU time counts all of it.
+    ratio = rec["cpu"] / tab["cpu"]
 
     def runs(items, key, fmt):
         return ", ".join(fmt.format(i[key]) for i in items)
@@ -193,9 +204,9 @@ def measure(var_dir: str, keep: bool) -> None:
         f"{runs(tables, 'cpu', '{:.2f} s')}"
     )
     print(
-        f"{'record / table, wall':<26}{ratio:>8.2f} ×   {'at most ' + f'{GOAL_RATIO:g} ×':<14}"
+        f"{'record / table, CPU':<26}{ratio:>8.2f} ×   {'at most ' + f'{GOAL_RATIO:g} ×':<14}"
         f"{verdict(ratio <= GOAL_RATIO):<8}"
-        f"CPU: {rec['cpu'] / tab['cpu']:.2f} ×"
+        f"wall: {rec['wall'] / tab['wall']:.2f} ×"
     )
     print(
         f"record: {rec['pages']} pages, {rec['bytes'] / 1e6:.1f} MB;"
@@ -206,12 +217,12 @@ def measure(var_dir: str, keep: bool) -> None:
         "record", f"{what}, wall", round(rec["wall"], 2), "s", f"< {GOAL_S:g} s",
         rec["wall"] < GOAL_S,
     )  # fmt: skip
-    _common.emit("record", f"{what}, CPU", round(rec["cpu"], 2), "s")
+    _common.emit("record", f"{what}, CPU of both processes", round(rec["cpu"], 2), "s")
     _common.emit(
         "record", "record render, peak memory", round(mb), "MB", f"< {GOAL_MB:g} MB", mb < GOAL_MB
     )
     _common.emit(
-        "record", "record / plain table, wall", round(ratio, 2), "×", f"≤ {GOAL_RATIO:g} ×",
+        "record", "record / plain table, CPU", round(ratio, 2), "×", f"≤ {GOAL_RATIO:g} ×",
         ratio <= GOAL_RATIO,
     )  # fmt: skip
 

@@ -5,7 +5,7 @@ SECRET_KEY, DEBUG, ALLOWED_HOSTS, CSRF_TRUSTED_ORIGINS, TIME_ZONE, DATABASE_URL,
 SECURE_SSL_REDIRECT, SECURE_PROXY_SSL_HEADER, SECURE_HSTS_SECONDS, MEDIA_ROOT,
 MEDIA_STORAGE_BACKEND / MEDIA_STORAGE_OPTIONS (JSON) for an S3-compatible store,
 REVERSE_PROXY_COUNT, SESSION_IDLE_MINUTES, SIGN_IN_FAILURE_LIMIT, SIGN_IN_COOLOFF_MINUTES,
-SIGNING_DIR, SIGNING_TIMESTAMP_URL.
+SIGNING_DIR, SIGNING_TIMESTAMP_URL, RECORD_RENDER_PROCESSES, RECORD_SPLIT_MIN_ENDS.
 """
 
 from __future__ import annotations
@@ -316,6 +316,13 @@ SIGNING_DIR = Path(os.environ.get("SIGNING_DIR", VAR_DIR / "signing"))
 # An RFC 3161 timestamp server; when set, each record's signature carries its timestamp
 # token (PAdES B-T). Empty: the signature alone (PAdES B-B), nothing leaves the server.
 SIGNING_TIMESTAMP_URL = os.environ.get("SIGNING_TIMESTAMP_URL", "").strip()
+
+# A long wiring record is laid out in this many processes at once (wiring/render/split.py;
+# at most 2 are used): the front part here, the back part in a worker. 1 lays every record
+# out in the app's own process. Only records of at least RECORD_SPLIT_MIN_ENDS conductor
+# ends are split: for a short one, starting the worker costs more than it saves.
+RECORD_RENDER_PROCESSES = env_int("RECORD_RENDER_PROCESSES", 2, minimum=1)
+RECORD_SPLIT_MIN_ENDS = env_int("RECORD_SPLIT_MIN_ENDS", 200, minimum=1)
 
 LOGGING = {
     "version": 1,

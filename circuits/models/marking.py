@@ -37,7 +37,12 @@ def colour_name(colour: str) -> str:
     """'green-yellow', 'bare', 'red'; an unknown stored value as it is."""
     if colour == Colour.BARE:
         return "bare"
-    return Colour(colour).label.lower() if colour in Colour.values else colour
+    return _COLOUR_NAMES.get(colour, colour)
+
+
+# Built once: Colour.values builds its list anew on every use, and a long record asks
+# for a name hundreds of times.
+_COLOUR_NAMES = {c.value: c.label.lower() for c in Colour}
 
 
 @dataclass(frozen=True)

@@ -239,13 +239,14 @@ def checklist_item_source(source: Callable[[Stage], list[ChecklistItem]]):
     return source
 
 
-def checklist_items_for(*, stage: Stage) -> list[ChecklistItem]:
+def checklist_items_for(*, stage: Stage, with_torque: bool = True) -> list[ChecklistItem]:
     """The stage's checklist, generated items first (torque per termination, then the
     circuit checks by tag), then the shop's own in their order, each with its latest mark
-    (or, for torque items, its current reading)."""
+    (or, for torque items, its current reading). `with_torque` False leaves out the torque
+    items (they follow the readings, for a reader that prints the readings themselves)."""
     marks = _latest_marks(stage)
     items: list[ChecklistItem] = []
-    if stage.takes_torque_readings:
+    if stage.takes_torque_readings and with_torque:
         readings = current_readings(stage)
         terminations = (
             Termination.objects.filter(circuit__job=stage.job_id)

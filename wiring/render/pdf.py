@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import datetime
 import gc
+import io
 import json
 from contextlib import contextmanager
 from functools import lru_cache
@@ -28,6 +29,7 @@ from django.utils import timezone
 
 from circuits.csv_io import circuits_to_csv
 from shop.models import ShopProfile
+from wiring.render import split
 
 MM = 72 / 25.4  # PDF points per millimetre (1 in = 25.4 mm = 72 pt)
 
@@ -78,7 +80,17 @@ def _no_cyclic_gc():
             gc.enable()
 
 
-def html_to_pdf(html: str, *, attachments: list | None = None, variant: str | None = PDF_VARIANT):
+def _paper_css() -> str:
+    return f"@page {{ size: {paper_size()}; }}"
+
+
+def html_to_pdf(
+    html: str,
+    *,
+    attachments: list | None = None,
+    variant: str | None = PDF_VARIANT,
+    extra_css: tuple[str, ...] = (),
+):
     """Render record-styled HTML to PDF bytes with the shop's paper size."""
     from weasyprint import CSS, HTML
     from weasyprint.urls import URLFetcher
@@ -86,7 +98,7 @@ def html_to_pdf(html: str, *, attachments: list | None = None, variant: str | No
     fetcher = URLFetcher(allowed_protocols={"data"})
     sheets = [
         CSS(filename=_stylesheet_path(), url_fetcher=fetcher),
-        CSS(string=f"@page {{ size: {paper_size()}; }}"),
+        *(CSS(string=s) for s in (_paper_css(), *extra_css)),
     ]
     with _no_cyclic_gc():
         document = HTML(string=html, base_url="data:,", url_fetcher=fetcher)
@@ -127,12 +139,53 @@ def render_record_pdf(
     verify_url: str,
     issued_at: datetime.datetime | None = None,
 ) -> bytes:
-    """The record of `job` as PDF/A-3b bytes (see the module docstring)."""
+    """The record of `job` as PDF/A-3b bytes (see the module docstring). A long record
+    is laid out in two processes at once (split.py); the result is the same record."""
     from wiring.render.html import record_context, render_record_context
 
-    issued_at = issued_at or timezone.now()
-    context = record_context(
-        job, revision=revision, draft=draft, verify_url=verify_url, issued_at=issued_at
+    worker = split.worker_for(job)  # started first: it loads WeasyPrint meanwhile
+    try:
+        issued_at = issued_at or timezone.now()
+        context = record_context(
+            job, revision=revision, draft=draft, verify_url=verify_url, issued_at=issued_at
+        )
+        if worker is not None:
+            try:
+                return _render_split(job, context, worker)
+            except split.WorkerFailed as error:
+                split.log.warning("record of %s laid out in one process: %s", job.number, error)
+        html = render_record_context(context)
+        return html_to_pdf(html, attachments=record_attachments(job, context["data"]))
+    finally:
+        if worker is not None:
+            worker.close()
+
+
+def _render_split(job, context: dict, worker: split.Worker) -> bytes:
+    from wiring.render.html import render_record_context
+
+    front, torque, end = split.part_contexts(context)
+    numbers_off = (split.NO_PAGE_NUMBERS_CSS,)
+    torque_pdf = worker.lay_out(
+        html=render_record_context(torque),
+        css_files=[_stylesheet_path()],
+        css_strings=[_paper_css(), *numbers_off],
+        variant=PDF_VARIANT,
     )
-    html = render_record_context(context)
-    return html_to_pdf(html, attachments=record_attachments(job, context["data"]))
+    front_pdf = html_to_pdf(
+        render_record_context(front),
+        attachments=record_attachments(job, context["data"]),
+        extra_css=numbers_off,
+    )
+    end_pdf = (
+        [html_to_pdf(render_record_context(end), extra_css=numbers_off)] if end["parts"] else []
+    )
+    pages = sum(map(_page_count, [front_pdf, *end_pdf])) + worker.pages()
+    numbers = html_to_pdf(split.numbers_html(pages))
+    return split.merge(front_pdf, [torque_pdf.result(), *end_pdf], numbers)
+
+
+def _page_count(pdf: bytes) -> int:
+    from pypdf import PdfReader
+
+    return len(PdfReader(io.BytesIO(pdf)).pages)
