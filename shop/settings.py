@@ -318,7 +318,7 @@ SIGNING_DIR = Path(os.environ.get("SIGNING_DIR", VAR_DIR / "signing"))
 SIGNING_TIMESTAMP_URL = os.environ.get("SIGNING_TIMESTAMP_URL", "").strip()
 
 # A long wiring record is laid out in this many processes at once (wiring/render/split.py;
-# at most 2 are used): its torque log in a worker, the rest here. 1 lays every record
+# at most 2 are used): from its torque log on in a worker, the rest here. 1 lays every record
 # out in the app's own process. Only records of at least RECORD_SPLIT_MIN_ENDS conductor
 # ends are split: for a short one, starting the worker costs more than it saves.
 RECORD_RENDER_PROCESSES = env_int("RECORD_RENDER_PROCESSES", 2, minimum=1)

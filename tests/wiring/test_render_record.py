@@ -208,8 +208,19 @@ def test_each_schedule_value_names_its_source_by_a_key_printed_under_the_table(p
 
 def test_the_torque_log_row_carries_wrench_calibration_technician_and_time(pdf):
     text = " ".join(text_of(pdf).split())
-    assert "TW-07 · cal. due" in text  # the wrench and its calibration due date
+    assert "W1 wrench TW-07, cal. due" in text  # the wrench and its calibration due date
+    assert "10 N·m · W1" in text  # each reading names its wrench by that key
     assert "Test Technician ·" in text  # who read it, then when
+
+
+def test_each_wrench_and_calibration_date_gets_its_own_key():
+    from wiring.render.cells import WrenchKeys
+
+    key = WrenchKeys()
+    assert [key("TW-07", "03 Mar 2027"), key("TW-09", "01 Jan 2027")] == ["W1", "W2"]
+    assert key("TW-07", "03 Mar 2027") == "W1"  # the same wrench and date: the same key
+    assert key("TW-07", "03 Mar 2028") == "W3"  # recalibrated between passes: a new key
+    assert [w["key"] for w in key.legend()] == ["W1", "W2", "W3"]
 
 
 def test_the_chart_labels_a_few_loose_ends_and_counts_them_all():

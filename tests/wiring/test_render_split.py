@@ -90,6 +90,14 @@ def test_a_split_record_is_the_same_record_as_one_laid_out_whole(long_job, setti
     assert len(split_pdf) < 1.5 * len(single_pdf)
 
 
+def test_every_page_of_a_split_draft_says_it_is_a_draft(long_job, settings):
+    settings.RECORD_RENDER_PROCESSES = 2
+    draft = render_record_pdf(long_job, revision=None, draft=True, verify_url="")
+    pages = page_texts(draft)
+    assert len(pages) > 3
+    assert all("DRAFT — not a signed record" in text for text in pages)
+
+
 def test_a_split_record_is_issued_signed_and_verifies(long_job, signing_key):
     revision = record_issue(job=long_job)
     with revision.file.open("rb") as handle:

@@ -105,9 +105,28 @@ def schedule_rows(circuits: list[dict]) -> tuple[list[dict], list[dict]]:
     return rows, key.legend()
 
 
-def reading_text(x: dict | None) -> str:
-    """One torque reading: the value and its marks first (bold by ::first-line), then
-    wrench and its calibration due date, technician and time, a correction's reason."""
+class WrenchKeys:
+    """Numbers each wrench, with the calibration due date it had when it was used, in
+    order of first use: "W1", "W2" ... A shop reads hundreds of ends with two or three
+    wrenches; the same wrench and date on every reading made each row a line taller."""
+
+    def __init__(self) -> None:
+        self._keys: dict[tuple[str, str], int] = {}
+
+    def __call__(self, wrench: str, due: str) -> str:
+        number = self._keys.setdefault((wrench, due), len(self._keys) + 1)
+        return f"W{number}"
+
+    def legend(self) -> list[dict]:
+        return [
+            {"key": f"W{n}", "wrench": wrench, "due": due or "not recorded"}
+            for (wrench, due), n in self._keys.items()
+        ]
+
+
+def reading_text(x: dict | None, wrench_key: WrenchKeys) -> str:
+    """One torque reading: the value, its marks and the wrench's key first (bold by
+    ::first-line), then technician and time, a correction's reason, a note."""
     if not x:
         return NOT_READ
     marks = [x["display"]]
@@ -117,16 +136,18 @@ def reading_text(x: dict | None) -> str:
         marks.append("✖ FOUND LOOSE")
     if x["corrected"]:
         marks.append("✎ corrected")
+    key = wrench_key(x["wrench"], x.get("wrench_calibration_due_text") or "")
     return _lines(
-        " ".join(marks),
-        f"{x['wrench']} · cal. due {x['wrench_calibration_due_text']}",
+        f"{' '.join(marks)} · {key}",
         f"{x['technician']} · {x['recorded_at_text']}",
         f"reason: {x['correction_reason']}" if x["corrected"] else None,
         x["note"],
     )
 
 
-def torque_rows(torque_log: list[dict]) -> list[dict]:
+def torque_rows(torque_log: list[dict]) -> tuple[list[dict], list[dict]]:
+    """The torque log's rows and the legend of the wrenches their keys name."""
+    wrench_key = WrenchKeys()
     rows = []
     for row in torque_log:
         loose = bool(row["retorque"] and row["retorque"]["found_loose"])
@@ -136,12 +157,12 @@ def torque_rows(torque_log: list[dict]) -> list[dict]:
                 "loose": loose,
                 # The spec shares the end's cell: one cell fewer on each of hundreds of rows.
                 "end": _lines(("✖ " if loose else "") + row["termination"], row["spec"]),
-                "first": reading_text(row["first_install"]),
-                "retorque": reading_text(row["retorque"]),
+                "first": reading_text(row["first_install"], wrench_key),
+                "retorque": reading_text(row["retorque"], wrench_key),
                 "change": "—" if moved is None else f"{floatformat(moved, 1)} %",
             }
         )
-    return rows
+    return rows, wrench_key.legend()
 
 
 def thermal_rows(thermal: list[dict]) -> list[dict]:

@@ -100,7 +100,7 @@ def record_context(
         checklist["exceptions"] = cells.checklist_exceptions(checklist["items"])
     for finding in r["findings"]:
         finding["text"] = cells.finding_text(finding)
-    torque_rows = cells.torque_rows(r["torque_log"])
+    torque_rows, wrenches = cells.torque_rows(r["torque_log"])
     return {
         # The whole record as one document; split.part_contexts makes its parts.
         "parts": RECORD_PARTS,
@@ -114,6 +114,7 @@ def record_context(
         "schedule_rows": schedule,
         "sources": sources,
         "torque_rows": torque_rows,
+        "wrenches": wrenches,
         "thermal_rows": cells.thermal_rows(r["thermal"]),
         "diagram_url": svg_url(diagram),
         "chart_url": svg_url(movement_chart_svg(data["torque_log"])),

@@ -15,10 +15,12 @@ How, when the job has at least `settings.RECORD_SPLIT_MIN_ENDS` conductor ends a
    since the last record) and the end (heat-cycle run, thermal check, checklists,
    photos, sign-offs, cautions). Cutting inside the torque log would balance finer but
    leave a part-filled page in the middle of the log.
-3. The worker lays out the torque log, the longest part, while this process lays out
-   the front (as PDF/A-3b with the attached CSV and JSON) and then the end: on the large
-   bench job the two sides take about the same time. The worker says its page count as
-   soon as its part is paginated, so the page numbers are rendered here while it draws.
+3. The worker lays out the torque log and the end while this process loads WeasyPrint
+   (when it has not yet) and lays out the front, as PDF/A-3b with the attached CSV and
+   JSON: on the large bench job the two sides take about the same time (HERE_FIRST,
+   IN_WORKER and HERE_AFTER say which part goes where). The worker says its page count
+   as soon as its part is paginated, so the page numbers are rendered here while it
+   still draws.
 4. `merge`: pypdf appends the later parts' pages to the front document, whose catalog
    (PDF/A metadata, output intent, attached files) stays as WeasyPrint wrote it, then
    stamps "page x of y" on every page from a fourth, tiny document of as many empty
@@ -54,7 +56,7 @@ WORKER = Path(__file__).with_name("pdf_worker.py")
 WORKER_TIMEOUT_S = 600
 # Which of the record's runs of sections (html.RECORD_PARTS) are laid out where, in page
 # order: here first (with the attached data), in the worker, here after.
-HERE_FIRST, IN_WORKER, HERE_AFTER = ("front",), ("torque",), ("end",)
+HERE_FIRST, IN_WORKER, HERE_AFTER = ("front",), ("torque", "end"), ()
 # Each part leaves the page numbers out; the numbers document (record.css, named page
 # "numbers") carries nothing else.
 NO_PAGE_NUMBERS_CSS = "@page { @bottom-right { content: none; } }"
