@@ -164,10 +164,10 @@ def render_record_pdf(
 def _render_split(job, context: dict, worker: split.Worker) -> bytes:
     from wiring.render.html import render_record_context
 
-    front, torque, end = split.part_contexts(context)
+    front, back = split.part_contexts(context)
     numbers_off = (split.NO_PAGE_NUMBERS_CSS,)
-    torque_pdf = worker.lay_out(
-        html=render_record_context(torque),
+    back_pdf = worker.lay_out(
+        html=render_record_context(back),
         css_files=[_stylesheet_path()],
         css_strings=[_paper_css(), *numbers_off],
         variant=PDF_VARIANT,
@@ -177,12 +177,9 @@ def _render_split(job, context: dict, worker: split.Worker) -> bytes:
         attachments=record_attachments(job, context["data"]),
         extra_css=numbers_off,
     )
-    end_pdf = (
-        [html_to_pdf(render_record_context(end), extra_css=numbers_off)] if end["parts"] else []
-    )
-    pages = sum(map(_page_count, [front_pdf, *end_pdf])) + worker.pages()
+    pages = _page_count(front_pdf) + worker.pages()
     numbers = html_to_pdf(split.numbers_html(pages))
-    return split.merge(front_pdf, [torque_pdf.result(), *end_pdf], numbers)
+    return split.merge(front_pdf, back_pdf.result(), numbers)
 
 
 def _page_count(pdf: bytes) -> int:

@@ -9,23 +9,20 @@ How, when the job has at least `settings.RECORD_SPLIT_MIN_ENDS` conductor ends a
 
 1. `worker_for(job)` starts the worker (pdf_worker.py) BEFORE the record's data is
    gathered, so that its import of WeasyPrint runs beside the app's queries.
-2. `part_contexts(context)`: the record in three parts, cut at page breaks it always
-   has (the torque log and the heat-cycle run each start a page, record.css): the front
-   (cover, system, schedule, findings), the torque log (with a return visit's change
-   since the last record) and the end (heat-cycle run, thermal check, checklists,
-   photos, sign-offs, cautions). Cutting inside the torque log would balance finer but
-   leave a part-filled page in the middle of the log.
-3. The worker lays out the torque log and the end while this process loads WeasyPrint
-   (when it has not yet) and lays out the front, as PDF/A-3b with the attached CSV and
-   JSON: on the large bench job the two sides take about the same time (HERE_FIRST,
-   IN_WORKER and HERE_AFTER say which part goes where). The worker says its page count
-   as soon as its part is paginated, so the page numbers are rendered here while it
-   still draws.
-4. `merge`: pypdf appends the later parts' pages to the front document, whose catalog
-   (PDF/A metadata, output intent, attached files) stays as WeasyPrint wrote it, then
-   stamps "page x of y" on every page from a fourth, tiny document of as many empty
-   pages that carries only that footer: no part knows y while it is laid out, so each
-   leaves it out.
+2. `part_contexts(context)`: the record in two parts, cut at a page break it always has
+   (the torque log starts a page, record.css): the front (cover, system, schedule,
+   findings) and the back (torque log to the last page). Cutting inside the torque log
+   would balance finer but leave a part-filled page in the middle of the log.
+3. The worker lays out the back while this process loads WeasyPrint (when it has not
+   yet) and lays out the front, as PDF/A-3b with the attached CSV and JSON: on the large
+   bench job the two sides take about the same time. The worker says its page count as
+   soon as its part is paginated, so the page numbers are rendered here while it still
+   draws.
+4. `merge`: pypdf appends the back's pages to the front document, whose catalog (PDF/A
+   metadata, output intent, attached files) stays as WeasyPrint wrote it, then stamps
+   "page x of y" on every page from a third, tiny document of as many empty pages that
+   carries only that footer: neither part knows y while it is laid out, so both leave
+   it out.
 
 The result reads exactly as the record laid out in one process (tests/wiring/
 test_render_split.py compares them line by line). If the worker fails in any way (cannot
@@ -55,8 +52,8 @@ log = logging.getLogger(__name__)
 WORKER = Path(__file__).with_name("pdf_worker.py")
 WORKER_TIMEOUT_S = 600
 # Which of the record's runs of sections (html.RECORD_PARTS) are laid out where, in page
-# order: here first (with the attached data), in the worker, here after.
-HERE_FIRST, IN_WORKER, HERE_AFTER = ("front",), ("torque", "end"), ()
+# order: here (with the attached data), then in the worker.
+HERE, IN_WORKER = ("front",), ("torque", "end")
 # Each part leaves the page numbers out; the numbers document (record.css, named page
 # "numbers") carries nothing else.
 NO_PAGE_NUMBERS_CSS = "@page { @bottom-right { content: none; } }"
@@ -164,10 +161,10 @@ def worker_for(job) -> Worker | None:
         return None
 
 
-def part_contexts(context: dict) -> tuple[dict, dict, dict]:
-    """The contexts of the parts laid out here first, in the worker, and here after
-    (record.html reads `parts`); an empty `parts` is no document."""
-    return tuple({**context, "parts": parts} for parts in (HERE_FIRST, IN_WORKER, HERE_AFTER))
+def part_contexts(context: dict) -> tuple[dict, dict]:
+    """The contexts of the front, laid out here, and the back, laid out in the worker
+    (record.html reads `parts`)."""
+    return {**context, "parts": HERE}, {**context, "parts": IN_WORKER}
 
 
 def numbers_html(pages: int) -> str:
@@ -179,20 +176,19 @@ def numbers_html(pages: int) -> str:
     )
 
 
-def merge(front: bytes, later: list[bytes], numbers: bytes) -> bytes:
-    """The front document with the pages of the `later` parts after its own, in order,
-    and every page stamped with its number from `numbers` (one page each)."""
+def merge(front: bytes, back: bytes, numbers: bytes) -> bytes:
+    """The front document with the back's pages after its own and every page stamped
+    with its number from `numbers` (one page each)."""
     from pypdf import PdfReader, PdfWriter
     from pypdf.errors import PyPdfError
 
     with _quiet("pypdf._writer"):
         writer = PdfWriter(clone_from=PdfReader(io.BytesIO(front)))
     info = dict(writer.metadata or {})
-    for part in later:
-        try:
-            writer.append(PdfReader(io.BytesIO(part)))
-        except PyPdfError as error:
-            raise WorkerFailed(f"its PDF could not be read: {error}") from error
+    try:
+        writer.append(PdfReader(io.BytesIO(back)))
+    except PyPdfError as error:
+        raise WorkerFailed(f"its PDF could not be read: {error}") from error
     stamps = PdfReader(io.BytesIO(numbers)).pages
     if len(stamps) != len(writer.pages):
         raise ValueError(f"{len(stamps)} page numbers for {len(writer.pages)} pages")
